@@ -1,0 +1,6 @@
+export * from './units.ts'
+export * from './gas.ts'
+export * from './scenario.ts'
+export * from './geometry.ts'
+export * from './balance.ts'
+export * from './sweep-grid.ts'

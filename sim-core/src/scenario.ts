@@ -1,0 +1,314 @@
+import { z } from 'zod'
+
+/**
+ * The scenario: every input of the model, SI, with its range and default. Pressures whose name ends in
+ * `Pa` inside a gauge context (boost, setpoints, limits) are gauge; `ambient.pressurePa` is absolute.
+ *
+ * Geometry and the choices a user must make are required; tuning constants carry the defaults of
+ * MODEL.md §4a and may be left out.
+ */
+
+type Bound = { min?: number; max?: number; minExclusive?: boolean }
+
+/** A finite number with friendly messages ("must be greater than 0", "must be at most 0.2"). */
+function num({ min, max, minExclusive = false }: Bound = {}) {
+  let s = z.number({ error: (i) => (i.input === undefined ? 'is required' : 'must be a number') })
+  s = s.finite({ error: 'must be a finite number' })
+  if (min !== undefined) {
+    s = minExclusive
+      ? s.gt(min, { error: `must be greater than ${min}` })
+      : s.gte(min, { error: `must be at least ${min}` })
+  }
+  if (max !== undefined) s = s.lte(max, { error: `must be at most ${max}` })
+  return s
+}
+const positive = (max?: number) => num({ min: 0, minExclusive: true, ...(max === undefined ? {} : { max }) })
+const nonNegative = (max?: number) => num({ min: 0, ...(max === undefined ? {} : { max }) })
+const fraction = () => num({ min: 0, max: 1 })
+const integer = (min: number, max: number) =>
+  z
+    .number({ error: (i) => (i.input === undefined ? 'is required' : 'must be a number') })
+    .int({ error: 'must be a whole number' })
+    .gte(min, { error: `must be at least ${min}` })
+    .lte(max, { error: `must be at most ${max}` })
+
+export const ambientSchema = z.strictObject({
+  pressurePa: num({ min: 50_000, max: 110_000 }).default(101_325), // sea level to high altitude, absolute
+  temperatureK: num({ min: 230, max: 330 }).default(298.15),
+})
+
+export const wastegateSchema = z
+  .strictObject({
+    count: integer(1, 4).default(1),
+    valveDiameterM: positive(0.1),
+    shaftDiameterM: positive(0.05),
+    /** Piston bore, or the effective diameter of a diaphragm. */
+    actuatorDiameterM: positive(0.2),
+    actuatorKind: z.enum(['diaphragm', 'piston']).default('diaphragm'),
+    /** Net-area overrides (designs differ in where the shaft passes); an override wins. */
+    valveBackAreaM2: positive(0.01).optional(),
+    bottomAreaM2: positive(0.03).optional(),
+    topAreaM2: positive(0.03).optional(),
+    maxLiftM: positive(0.05),
+    movingMassKg: positive(5).default(0.15),
+    dampingRatio: nonNegative(5).default(0.3),
+    valveDischargeCoefficient: positive(1).default(0.7),
+    topChamberVolumeM3: positive(0.001).default(60e-6),
+    bottomChamberVolumeM3: positive(0.001).default(25e-6),
+    /** Port and vent bore of the actuator fittings. */
+    portDiameterM: positive(0.02).default(0.001),
+    portDischargeCoefficient: positive(1).default(0.7),
+    /** Lift above which the valve counts as cracked (0.005 in). */
+    crackThresholdM: positive(0.005).default(0.000127),
+  })
+  .superRefine((w, ctx) => {
+    if (w.valveDiameterM <= w.shaftDiameterM) {
+      ctx.addIssue({ code: 'custom', path: ['valveDiameterM'], message: 'must be larger than wastegate.shaftDiameterM' })
+    }
+    if (w.actuatorDiameterM <= w.shaftDiameterM) {
+      ctx.addIssue({ code: 'custom', path: ['actuatorDiameterM'], message: 'must be larger than wastegate.shaftDiameterM' })
+    }
+  })
+
+export const springSchema = z.discriminatedUnion(
+  'from',
+  [
+    z.strictObject({
+      from: z.literal('seat'),
+      /** Preload at the installed height, valve closed. */
+      seatForceN: nonNegative(5000),
+      rateNPerM: nonNegative(500_000),
+    }),
+    z.strictObject({
+      from: z.literal('bench'),
+      /** Gauge pressure on the bottom port that just lifts the valve on the bench, no exhaust pressure. */
+      benchCrackPressurePa: positive(1_000_000),
+      rateNPerM: nonNegative(500_000),
+    }),
+  ],
+  { error: 'must say where the spring comes from: "seat" (seat force) or "bench" (bench crack pressure)' },
+)
+
+export const controlSchema = z.discriminatedUnion(
+  'kind',
+  [
+    /** Both ports open to the air: only drive pressure opens the valve. */
+    z.strictObject({ kind: z.literal('none') }),
+    /** Bottom port on boost. */
+    z.strictObject({ kind: z.literal('bottom-boost') }),
+    /** Top port on the supply's regulated pressure, bottom port open. */
+    z.strictObject({ kind: z.literal('top-supply') }),
+    /** Bottom port on boost and top port on the supply. */
+    z.strictObject({ kind: z.literal('both') }),
+    /** A bleed sends a fraction of boost to the top chamber; bottom port on boost or open. */
+    z.strictObject({
+      kind: z.literal('bleed-top'),
+      fraction: fraction(),
+      bottomOnBoost: z.boolean().default(true),
+    }),
+    /** A three-port solenoid: it feeds one chamber from its source or vents it, by duty. */
+    z.strictObject({
+      kind: z.literal('solenoid-3port'),
+      chamber: z.enum(['bottom', 'top']),
+      duty: fraction(),
+      solenoidDiameterM: positive(0.01).default(0.0015),
+      /** The fixed restrictor that feeds or vents the chamber against the solenoid. */
+      restrictorDiameterM: positive(0.01).default(0.001),
+    }),
+    /** A four-port solenoid: boost to the bottom chamber and supply to the top, traded by duty. */
+    z.strictObject({
+      kind: z.literal('solenoid-4port'),
+      duty: fraction(),
+      solenoidDiameterM: positive(0.01).default(0.0015),
+      restrictorDiameterM: positive(0.01).default(0.001),
+    }),
+    /** Top port on the supply through a solenoid in closed loop on a boost target. */
+    z.strictObject({
+      kind: z.literal('closed-loop'),
+      targetBoostPa: positive(1_000_000),
+      /** Boost target by rpm; between points it is interpolated, outside held. */
+      targetByRpm: z.array(z.strictObject({ rpm: positive(20_000), boostPa: nonNegative(1_000_000) })).max(32).optional(),
+      proportionalPerPa: nonNegative().default(2e-5),
+      integralPerPaS: nonNegative().default(1e-4),
+      derivativeSPerPa: nonNegative().default(0),
+      dutyMin: fraction().default(0),
+      dutyMax: fraction().default(1),
+      solenoidDiameterM: positive(0.01).default(0.0015),
+      restrictorDiameterM: positive(0.01).default(0.001),
+    }),
+  ],
+  {
+    error:
+      'must be one of "none", "bottom-boost", "top-supply", "both", "bleed-top", "solenoid-3port", "solenoid-4port", "closed-loop"',
+  },
+)
+
+const regulator = {
+  /** Gauge pressure the regulator delivers to the top port. */
+  regulatorSetpointPa: nonNegative(2_000_000),
+  /** Drop below the setpoint as the inlet falls towards it. */
+  regulatorDroopPa: nonNegative(500_000).default(20_000),
+}
+
+export const supplySchema = z.discriminatedUnion(
+  'kind',
+  [
+    /** The usual: the control's source is boost itself. */
+    z.strictObject({ kind: z.literal('boost') }),
+    z.strictObject({
+      kind: z.literal('co2'),
+      ...regulator,
+      bottleVolumeM3: positive(0.05).default(0.0046), // about a 5 lb bottle (common practice, no source)
+      fillMassKg: positive(20).default(2.27), // 5 lb of liquid CO₂
+      bottleTemperatureK: num({ min: 230, max: 350 }).default(298.15),
+    }),
+    z.strictObject({
+      kind: z.literal('compressor'),
+      ...regulator,
+      tankVolumeM3: positive(0.2).default(0.0095), // a 2.5 gal tank (common practice, no source)
+      cutInPa: positive(3_000_000).default(827_371), // 120 psi gauge
+      cutOutPa: positive(3_000_000).default(1_034_214), // 150 psi gauge
+      /** Free-air delivery at zero gauge pressure, falling linearly to zero at `maxPressurePa`. */
+      ratedFlowM3PerS: positive(0.05).default(0.00047), // about 1 scfm
+      maxPressurePa: positive(5_000_000).default(1_378_951), // 200 psi gauge
+      initialTankPa: nonNegative(5_000_000).optional(),
+    }),
+  ],
+  { error: 'must be one of "boost", "co2", "compressor"' },
+)
+
+export const downstreamSchema = z.discriminatedUnion(
+  'kind',
+  [
+    /** Open dump to the air. */
+    z.strictObject({ kind: z.literal('vented') }),
+    /** A muffled or restricted dump: p_dn = p_amb + K·ṁ_wg². */
+    z.strictObject({ kind: z.literal('restricted'), coefficientPaPerKg2S2: positive(1e9) }),
+    /** Plumbed back into the exhaust after the turbine: p_dn = p_to. */
+    z.strictObject({ kind: z.literal('recirculated') }),
+  ],
+  { error: 'must be one of "vented", "restricted", "recirculated"' },
+)
+
+export const exhaustSchema = z.strictObject({
+  mode: z.enum(['ratio', 'turbine']).default('ratio'),
+  /** Drive-to-boost pressure ratio (gauge over gauge); the trade reasons with 1:1 to 2:1. */
+  ratio: num({ min: 0.5, max: 4 }),
+  /** Drive pressure at zero boost, gauge. */
+  driveAtZeroBoostPa: nonNegative(500_000).default(0),
+  downstream: downstreamSchema.prefault({ kind: 'vented' }),
+  /** Exhaust system loss after the turbine: p_to = p_amb + K_ex·ṁ_t². */
+  backPressureCoefficientPaPerKg2S2: nonNegative(1e8).default(40_000),
+  /** Effective turbine flow area (turbine mode). */
+  turbineAreaM2: positive(0.05).default(0.0008),
+})
+
+export const engineSchema = z
+  .strictObject({
+    displacementM3: positive(0.02),
+    volumetricEfficiency: num({ min: 0.2, max: 1.5 }).default(0.9),
+    rpmStart: positive(20_000),
+    rpmEnd: positive(20_000),
+    pullDurationS: num({ min: 0.2, max: 60 }).default(4),
+    airFuelRatio: num({ min: 5, max: 30 }).default(12.5),
+    exhaustTemperatureK: num({ min: 500, max: 1500 }).default(1173.15),
+    chargeTemperatureK: num({ min: 230, max: 500 }).default(320),
+    intakeVolumeM3: positive(0.1).default(0.004),
+    exhaustVolumeM3: positive(0.1).default(0.002),
+  })
+  .superRefine((e, ctx) => {
+    if (e.rpmEnd <= e.rpmStart) {
+      ctx.addIssue({ code: 'custom', path: ['rpmEnd'], message: 'must be larger than engine.rpmStart' })
+    }
+  })
+
+export const turboSchema = z.strictObject({
+  compressorTipRadiusM: positive(0.1).default(0.03),
+  inducerDiameterM: positive(0.2).default(0.046),
+  /** Work coefficient ψ of the speed line of MODEL.md §4. */
+  headCoefficient: positive(3).default(0.9),
+  /** Flow coefficient Φ of the speed line. */
+  flowCoefficient: positive(2).default(0.45),
+  compressorEfficiency: num({ min: 0.3, max: 0.9 }).default(0.72),
+  turbineEfficiency: num({ min: 0.3, max: 0.9 }).default(0.7),
+  inertiaKgM2: positive(0.01).default(4e-5),
+  /** Shaft friction P_f = c_f·ω². */
+  frictionWPerRad2S2: nonNegative(1).default(2e-6),
+  idleSpeedRadS: positive(5000).default(1000),
+})
+
+export const solverSchema = z.strictObject({
+  relativeTolerance: num({ min: 1e-10, max: 1e-2 }).default(1e-6),
+  maxStepS: num({ min: 1e-5, max: 0.1 }).default(0.01),
+  sampleIntervalS: num({ min: 1e-3, max: 1 }).default(0.01),
+  maxSteps: integer(100, 10_000_000).default(200_000),
+})
+
+export const scenarioSchema = z.strictObject({
+  ambient: ambientSchema.prefault({}),
+  engine: engineSchema,
+  turbo: turboSchema.prefault({}),
+  wastegate: wastegateSchema,
+  springs: z.array(springSchema).min(1, { error: 'needs at least one spring' }).max(3, { error: 'takes at most 3 nested springs' }),
+  control: controlSchema,
+  supply: supplySchema,
+  exhaust: exhaustSchema,
+  /** The user's boost limit, gauge; results above it are flagged. */
+  boostLimitPa: positive(1_000_000).optional(),
+  solver: solverSchema.prefault({}),
+})
+
+export type Scenario = z.output<typeof scenarioSchema>
+export type ScenarioInput = z.input<typeof scenarioSchema>
+export type Spring = z.output<typeof springSchema>
+export type Control = z.output<typeof controlSchema>
+export type Supply = z.output<typeof supplySchema>
+
+export interface FieldIssue {
+  /** Dotted path into the scenario, e.g. `wastegate.valveDiameterM`. */
+  path: string
+  message: string
+}
+
+export type ParseResult = { ok: true; scenario: Scenario } | { ok: false; issues: FieldIssue[] }
+
+/** Turns zod issues into `{ path, message }` with dotted paths. */
+export function toFieldIssues(error: z.ZodError, prefix = ''): FieldIssue[] {
+  return error.issues.map((issue) => {
+    const keys = issue.code === 'unrecognized_keys' ? issue.keys : []
+    const base = [prefix, ...issue.path.map(String)].filter(Boolean).join('.')
+    if (keys.length > 0) {
+      return { path: [base, keys[0]].filter(Boolean).join('.'), message: `is not a known field (${keys.join(', ')})` }
+    }
+    return { path: base, message: issue.message }
+  })
+}
+
+/** Validates any input as a scenario, with every field's problem named. */
+export function parseScenario(input: unknown): ParseResult {
+  const result = scenarioSchema.safeParse(input)
+  if (result.success) return { ok: true, scenario: result.data }
+  return { ok: false, issues: toFieldIssues(result.error) }
+}
+
+/**
+ * The starting point of a new scenario: a 2.0 L four-cylinder with one wastegate, its bottom port on boost.
+ * Gate geometry follows a worked example of the trade (piston Ø 2.184 in, shaft Ø 0.386 in, valve Ø 1.817 in;
+ * common practice, no source); the spring is a 29 lbf seat, 20 lbf/in (common practice, no source).
+ */
+export function defaultScenario(): Scenario {
+  return scenarioSchema.parse({
+    engine: { displacementM3: 0.002, rpmStart: 3000, rpmEnd: 7000 },
+    wastegate: {
+      valveDiameterM: 0.046152, // 1.817 in
+      shaftDiameterM: 0.0098044, // 0.386 in
+      actuatorDiameterM: 0.0554736, // 2.184 in
+      maxLiftM: 0.0127,
+    },
+    springs: [{ from: 'seat', seatForceN: 129, rateNPerM: 3500 }],
+    control: { kind: 'bottom-boost' },
+    supply: { kind: 'boost' },
+    exhaust: { ratio: 1.5 },
+    boostLimitPa: 172_369, // 25 psi
+  })
+}
