@@ -1,0 +1,70 @@
+import { createRouter, createWebHistory, type RouteRecordRaw } from 'vue-router'
+import { useSessionStore } from '@/stores/session'
+
+declare module 'vue-router' {
+  interface RouteMeta {
+    /** Reachable without signing in. */
+    public?: boolean
+    title?: string
+  }
+}
+
+const routes: RouteRecordRaw[] = [
+  { path: '/', redirect: { name: 'scenarios' } },
+  {
+    path: '/sign-in',
+    name: 'sign-in',
+    component: () => import('@/views/SignInView.vue'),
+    meta: { public: true, title: 'Sign in' },
+  },
+  {
+    path: '/',
+    component: () => import('@/components/AppShell.vue'),
+    children: [
+      {
+        path: 'scenarios',
+        name: 'scenarios',
+        component: () => import('@/views/ScenarioListView.vue'),
+        meta: { title: 'Scenarios' },
+      },
+      {
+        path: 'scenarios/:id',
+        name: 'scenario',
+        component: () => import('@/views/ScenarioView.vue'),
+        props: true,
+        meta: { title: 'Scenario' },
+      },
+      {
+        path: ':pathMatch(.*)*',
+        name: 'not-found',
+        component: () => import('@/views/NotFoundView.vue'),
+        meta: { title: 'Not found' },
+      },
+    ],
+  },
+]
+
+export const router = createRouter({
+  history: createWebHistory(import.meta.env.BASE_URL),
+  routes,
+})
+
+router.beforeEach(async (to) => {
+  const session = useSessionStore()
+  if (to.meta.public) {
+    if (to.name === 'sign-in' && session.isSignedIn) return { name: 'scenarios' }
+    return true
+  }
+  if (!session.isSignedIn) return { name: 'sign-in', query: { next: to.fullPath } }
+  try {
+    await session.ensureUser()
+  } catch {
+    // A rejected token has signed the user out; any other failure (network) lets the page show its own error.
+    if (!session.isSignedIn) return { name: 'sign-in', query: { next: to.fullPath } }
+  }
+  return true
+})
+
+router.afterEach((to) => {
+  document.title = to.meta.title ? `${to.meta.title} · Crackpoint` : 'Crackpoint'
+})

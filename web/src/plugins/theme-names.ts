@@ -1,0 +1,1 @@
+export const THEME_NAMES = { light: 'crackpointLight', dark: 'crackpointDark' } as const

@@ -1,0 +1,16 @@
+import { fileURLToPath } from 'node:url'
+import { mergeConfig, defineConfig, configDefaults } from 'vitest/config'
+import viteConfig from './vite.config'
+
+export default mergeConfig(
+  viteConfig,
+  defineConfig({
+    test: {
+      environment: 'happy-dom',
+      exclude: [...configDefaults.exclude, 'e2e/**'],
+      root: fileURLToPath(new URL('./', import.meta.url)),
+      // Vuetify ships .css imports inside its modules; Node cannot load those unless vite transforms them.
+      server: { deps: { inline: ['vuetify'] } },
+    },
+  }),
+)
