@@ -1,0 +1,171 @@
+import { chmodSync, existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { dirname, join, sep } from 'node:path'
+import { buildWeb } from './lib/build-web.ts'
+import { CleanupStack } from './lib/cleanup-stack.ts'
+import { fallbackClusterRoot } from './lib/cluster-location.ts'
+import { parseConfig } from './lib/config.ts'
+import { findTestFiles } from './lib/find-test-files.ts'
+import { repoRoot } from './lib/repo-root.ts'
+import { runMain } from './lib/run-main.ts'
+import { runVitest, type VitestOutcome, type VitestRun } from './lib/run-vitest.ts'
+import { ScriptError } from './lib/script-error.ts'
+import { createServices } from './lib/services.ts'
+import { tailFile } from './lib/tail-file.ts'
+import { runMigrations } from './migrate.ts'
+
+const say = (line: string) => console.log(`[test] ${line}`)
+
+interface Suite {
+  name: string
+  /** Where its test files are, to tell "no tests yet" from "tests that vitest did not find". */
+  testDir: string
+  run: Omit<VitestRun, 'name' | 'passWithNoTests'>
+}
+
+const packageConfigNames = ['vitest.config', 'vite.config'].flatMap((n) => ['.ts', '.mts', '.js', '.mjs'].map((e) => n + e))
+
+/** A workspace package runs with its own vitest config (the package owns it), from its own folder. */
+function packageSuite(name: string): Suite {
+  const root = join(repoRoot, name)
+  const own = packageConfigNames.map((n) => join(root, n)).find((path) => existsSync(path))
+  return {
+    name,
+    testDir: root,
+    run: { root, config: own ?? join(repoRoot, 'scripts', 'lib', 'vitest-package-defaults.config.ts') },
+  }
+}
+
+/** Cross-package tests under /tests run as projects of the root vitest.config.ts. */
+function rootSuite(project: string): Suite {
+  return {
+    name: `tests/${project}`,
+    testDir: join(repoRoot, 'tests', project),
+    run: { root: repoRoot, config: join(repoRoot, 'vitest.config.ts'), extraArgs: ['--project', project] },
+  }
+}
+
+const suites: Suite[] = [
+  rootSuite('scripts'),
+  packageSuite('sim-core'),
+  packageSuite('worker'),
+  packageSuite('api'),
+  packageSuite('web'),
+  rootSuite('api'),
+  rootSuite('e2e'),
+]
+
+/**
+ * `npm test`: throwaway PostgreSQL and Redis on the test ports in a fresh temporary folder, migrations,
+ * a build of the web app, then every suite in turn with the services' addresses in the environment.
+ * Suites run one after another because they share one database. The services and the folder are removed
+ * at the end, whatever happened. `npm test -- <suite> …` runs only the suites named.
+ */
+runMain(async () => {
+  const wanted = process.argv.slice(2)
+  const unknown = wanted.filter((name) => !suites.some((s) => s.name === name))
+  if (unknown.length > 0) {
+    throw new ScriptError(`No test suite named ${unknown.join(', ')}. Suites: ${suites.map((s) => s.name).join(', ')}`)
+  }
+  const selected = wanted.length === 0 ? suites : suites.filter((s) => wanted.includes(s.name))
+
+  const started = Date.now()
+  const cleanup = new CleanupStack()
+  const abort = new AbortController()
+  let stopSignal: NodeJS.Signals | null = null
+  const onSignal = (signal: NodeJS.Signals) => {
+    if (stopSignal !== null) return
+    stopSignal = signal
+    say(`${signal}: stopping the tests and cleaning up`)
+    abort.abort()
+  }
+  process.on('SIGINT', onSignal)
+  process.on('SIGTERM', onSignal)
+
+  const tmp = mkdtempSync(join(tmpdir(), 'crackpoint-test-'))
+  cleanup.push(`remove ${tmp}`, () => rmSync(tmp, { recursive: true, force: true }))
+  // mkdtemp makes the folder 0700; as root, PostgreSQL runs as the postgres user and must pass through it.
+  chmodSync(tmp, 0o755)
+  const reportDir = join(tmp, 'reports')
+  mkdirSync(reportDir)
+
+  const outcomes: VitestOutcome[] = []
+  const failedSteps: string[] = []
+  try {
+    const config = parseConfig(process.env, { mode: 'test', dataDir: tmp })
+    const services = createServices(config, say)
+    cleanup.push('remove the test cluster', () => {
+      const dir = services.postgres.clusterDir()
+      // Only a cluster moved out of the temporary folder needs removing on its own (see cluster-location.ts).
+      if (!dir.startsWith(tmp + sep) && dir.startsWith(fallbackClusterRoot + sep)) {
+        rmSync(dirname(dir), { recursive: true, force: true })
+      }
+    })
+    say(`Starting throwaway PostgreSQL and Redis in ${tmp}`)
+    await services.start()
+    cleanup.push('stop the test services', () => services.stop())
+
+    const { applied } = await runMigrations({ databaseUrl: config.databaseUrl })
+    say(`Applied ${applied.length} migration(s)`)
+
+    if (stopSignal === null) {
+      try {
+        say('Building the web app')
+        const built = await buildWeb({ outDir: config.webDist, signal: abort.signal })
+        say(`Web app built in ${built.seconds.toFixed(1)} s`)
+      } catch (error) {
+        // The suites still run: most do not need the built app, and their results are worth having.
+        failedSteps.push('web build')
+        console.error(error instanceof Error ? error.message : String(error))
+      }
+    }
+
+    const env: NodeJS.ProcessEnv = {
+      ...process.env,
+      DATABASE_URL: config.databaseUrl,
+      REDIS_URL: config.redisUrl,
+      LOG_LEVEL: 'silent',
+      NODE_ENV: 'test',
+      CHROMIUM_PATH: config.chromiumPath,
+      WEB_DIST: config.webDist,
+    }
+    for (const suite of selected) {
+      if (stopSignal !== null) break
+      const hasTests = findTestFiles(suite.testDir).length > 0
+      say(`Running ${suite.name}${hasTests ? '' : ' (no test files yet)'}`)
+      outcomes.push(
+        await runVitest(
+          { name: suite.name, ...suite.run, passWithNoTests: !hasTests },
+          { env, reportDir, signal: abort.signal },
+        ),
+      )
+    }
+
+    for (const status of await services.status()) {
+      if (status.state !== 'running') {
+        failedSteps.push(`${status.name} stopped during the tests`)
+        console.error(`${status.name} is ${status.state} after the tests. Last lines of ${status.log}:\n${tailFile(status.log)}`)
+      }
+    }
+  } catch (error) {
+    if (!(error instanceof ScriptError)) throw error
+    failedSteps.push('setting up the test services')
+    console.error(`\n${error.message}`)
+  } finally {
+    await cleanup.runAll((line) => console.error(`[test] ${line}`))
+  }
+
+  const passed = outcomes.reduce((sum, o) => sum + o.passed, 0)
+  const failed = outcomes.reduce((sum, o) => sum + o.failed, 0) + failedSteps.length
+  console.log('\nSummary')
+  for (const o of outcomes) {
+    const counts = o.passed + o.failed + o.skipped === 0 ? 'no tests' : `${o.passed} passed, ${o.failed} failed`
+    const skipped = o.skipped > 0 ? `, ${o.skipped} skipped` : ''
+    console.log(`  ${o.failed > 0 ? '✗' : '✓'} ${o.name.padEnd(14)} ${counts}${skipped}  (${o.seconds.toFixed(1)} s)${o.note ? `  ${o.note}` : ''}`)
+  }
+  for (const step of failedSteps) console.log(`  ✗ ${step} (counted as 1 failed)`)
+  if (stopSignal !== null) console.log(`  stopped by ${stopSignal}; suites not run are left out`)
+  console.log(`  total ${((Date.now() - started) / 1000).toFixed(1)} s`)
+  console.log(`${passed} passed, ${failed} failed`)
+  return failed === 0 && stopSignal === null ? 0 : 1
+})
