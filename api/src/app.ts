@@ -1,0 +1,64 @@
+import { existsSync } from 'node:fs';
+import { join } from 'node:path';
+import express, { type Express } from 'express';
+import type { Knex } from 'knex';
+import type { Logger } from 'pino';
+import { pinoHttp } from 'pino-http';
+import type { Config } from './config.ts';
+import { AppError, errorMiddleware } from './errors/index.ts';
+import { createLogger } from './logger.ts';
+import { apiRoutes } from './routes/index.ts';
+import type { SweepQueue } from './services/sweeps.ts';
+
+export interface AppDeps {
+  knex: Knex;
+  queue: SweepQueue;
+  config: Config;
+  logger?: Logger;
+}
+
+/** A scenario is a few kilobytes and a sweep at most 3 × 1000 values; anything far larger is a mistake. */
+const JSON_LIMIT = '1mb';
+
+export function createApp(deps: AppDeps): Express {
+  const { config, knex, queue } = deps;
+  const logger = deps.logger ?? createLogger(config);
+
+  const app = express();
+  app.disable('x-powered-by');
+
+  app.use(
+    pinoHttp({
+      logger,
+      // Bodies and headers are never logged: they carry passwords and bearer tokens.
+      serializers: {
+        req: (req: { id?: unknown; method?: string; url?: string }) => ({ id: req.id, method: req.method, url: req.url }),
+        res: (res: { statusCode?: number }) => ({ statusCode: res.statusCode }),
+      },
+      customLogLevel: (_req, res, error) => (error || res.statusCode >= 500 ? 'error' : res.statusCode >= 400 ? 'warn' : 'info'),
+    }),
+  );
+
+  app.use('/api', express.json({ limit: JSON_LIMIT }));
+  app.use('/api', apiRoutes({ knex, queue, config, logger }));
+
+  const indexHtml = join(config.webDist, 'index.html');
+  if (existsSync(indexHtml)) {
+    app.use(express.static(config.webDist, { index: false, maxAge: '1h' }));
+    // History fallback: the web app's own router handles every non-API page.
+    app.use((req, res, next) => {
+      if (req.method !== 'GET' && req.method !== 'HEAD') {
+        next();
+        return;
+      }
+      res.setHeader('Cache-Control', 'no-cache');
+      res.sendFile(indexHtml);
+    });
+  }
+
+  app.use(() => {
+    throw new AppError(404, 'not_found', 'There is nothing here.');
+  });
+  app.use(errorMiddleware);
+  return app;
+}

@@ -1,0 +1,2 @@
+export { AppError, type FieldErrors } from './app-error.ts';
+export { errorMiddleware, toErrorResponse, zodFields, type ErrorBody } from './error-middleware.ts';

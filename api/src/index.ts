@@ -1,0 +1,13 @@
+export { createApp, type AppDeps } from './app.ts';
+export { loadConfig, ConfigError, DEV_JWT_SECRET, type Config } from './config.ts';
+export { createKnex } from './db.ts';
+export { createLogger } from './logger.ts';
+export {
+  seedDemoWorkspace,
+  DEMO_PASSWORD,
+  DEMO_SCENARIO_NAME,
+  DEMO_USERS,
+  DEMO_WORKSPACE,
+  type SeedResult,
+} from './seed/seed-demo-workspace.ts';
+export type { SweepQueue } from './services/sweeps.ts';

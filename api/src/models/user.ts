@@ -1,0 +1,30 @@
+import type { RelationMappings } from 'objection';
+import { BaseModel } from './base-model.ts';
+import { Workspace } from './workspace.ts';
+
+export const USER_ROLES = ['admin', 'engineer', 'builder', 'analyst'] as const;
+export type UserRole = (typeof USER_ROLES)[number];
+export const UNIT_SYSTEMS = ['us', 'metric'] as const;
+export type UnitSystem = (typeof UNIT_SYSTEMS)[number];
+
+export class User extends BaseModel {
+  static override tableName = 'users';
+
+  id!: string;
+  workspaceId!: string;
+  email!: string;
+  passwordHash!: string;
+  displayName!: string;
+  role!: UserRole;
+  unitSystem!: UnitSystem;
+
+  workspace?: Workspace;
+
+  static override relationMappings = (): RelationMappings => ({
+    workspace: {
+      relation: BaseModel.BelongsToOneRelation,
+      modelClass: Workspace,
+      join: { from: 'users.workspace_id', to: 'workspaces.id' },
+    },
+  });
+}

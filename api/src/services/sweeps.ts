@@ -1,0 +1,177 @@
+import { countPoints, resolveAxes } from '@crackpoint/sim-core';
+import { jobIdFor, SWEEP_CHUNK_JOB, SWEEP_CHUNK_JOB_OPTIONS, type SweepChunkJob } from '@crackpoint/worker';
+import type { Queue } from 'bullmq';
+import type { Knex } from 'knex';
+import type { Logger } from 'pino';
+import type { Config } from '../config.ts';
+import { AppError, type FieldErrors } from '../errors/index.ts';
+import { Sweep, SweepPoint, type ResolvedAxis } from '../models/index.ts';
+import type { CreateSweepBody, ListSweepsQuery, Surface, SurfaceQuery, SweepView } from '../schemas/sweeps.ts';
+import type { AuthContext } from './auth.ts';
+import { findScenario } from './scenarios.ts';
+
+/** What the API needs of the sweep queue: enqueue chunks and report its health. */
+export type SweepQueue = Pick<Queue<SweepChunkJob>, 'name' | 'addBulk' | 'getJobCounts'>;
+
+export interface SweepDeps {
+  knex: Knex;
+  config: Config;
+  queue: SweepQueue;
+  logger: Logger;
+}
+
+const ENQUEUE_BATCH = 500;
+const CHUNK_INSERT_BATCH = 1000;
+
+export function presentSweep(sweep: Sweep): SweepView {
+  return {
+    id: sweep.id,
+    scenarioId: sweep.scenarioId,
+    state: sweep.state,
+    level: sweep.level,
+    axes: sweep.axes.map((axis) => ({ path: axis.path, values: axis.values })),
+    pointCount: sweep.pointCount,
+    pointsDone: sweep.pointsDone,
+    pointsFailed: sweep.pointsFailed,
+    createdAt: sweep.createdAt.toISOString(),
+    startedAt: sweep.startedAt ? sweep.startedAt.toISOString() : null,
+    finishedAt: sweep.finishedAt ? sweep.finishedAt.toISOString() : null,
+  };
+}
+
+function issuesToFields(issues: { path: string; message: string }[]): FieldErrors {
+  const fields: FieldErrors = {};
+  for (const issue of issues) fields[issue.path || 'axes'] ??= issue.message;
+  return fields;
+}
+
+export async function createSweep(deps: SweepDeps, auth: AuthContext, input: CreateSweepBody): Promise<SweepView> {
+  const scenario = await findScenario(deps.knex, auth.workspaceId, input.scenarioId);
+  const resolved = resolveAxes(scenario.data, input.axes);
+  if (!resolved.ok) throw AppError.validation(issuesToFields(resolved.issues), 'The sweep axes are not valid.');
+  const axes: ResolvedAxis[] = resolved.axes;
+
+  const pointCount = countPoints(axes);
+  if (pointCount > deps.config.sweepMaxPoints) {
+    throw AppError.validation(
+      { axes: `give ${pointCount} points; a sweep may have at most ${deps.config.sweepMaxPoints}` },
+      'The sweep is too large.',
+    );
+  }
+  const chunkSize = deps.config.sweepChunkSize;
+  const chunkCount = Math.ceil(pointCount / chunkSize);
+
+  // The sweep and every chunk row exist together or not at all; the workers trust both.
+  const sweep = await deps.knex.transaction(async (trx) => {
+    const row = await Sweep.query(trx).insertAndFetch({
+      workspaceId: auth.workspaceId,
+      scenarioId: scenario.id,
+      createdBy: auth.userId,
+      scenarioSnapshot: scenario.data,
+      level: input.level,
+      axes,
+      state: 'queued',
+      pointCount,
+      chunkSize,
+    });
+    const chunks = Array.from({ length: chunkCount }, (_, chunkIndex) => ({
+      sweep_id: row.id,
+      chunk_index: chunkIndex,
+      first_index: chunkIndex * chunkSize,
+      point_count: Math.min(chunkSize, pointCount - chunkIndex * chunkSize),
+    }));
+    await trx.batchInsert('sweep_chunks', chunks, CHUNK_INSERT_BATCH);
+    return row;
+  });
+
+  // PostgreSQL is the record of what must run. If Redis refuses the jobs now, the sweep stays
+  // queued there and can be enqueued again later under the same job ids.
+  try {
+    for (let first = 0; first < chunkCount; first += ENQUEUE_BATCH) {
+      const jobs = [];
+      for (let chunkIndex = first; chunkIndex < Math.min(first + ENQUEUE_BATCH, chunkCount); chunkIndex++) {
+        const data: SweepChunkJob = { sweepId: sweep.id, chunkIndex };
+        jobs.push({ name: SWEEP_CHUNK_JOB, data, opts: { ...SWEEP_CHUNK_JOB_OPTIONS, jobId: jobIdFor(data) } });
+      }
+      await deps.queue.addBulk(jobs);
+    }
+  } catch (error) {
+    deps.logger.error({ err: error, sweepId: sweep.id, chunkCount }, 'sweep saved but its chunks could not be enqueued');
+  }
+
+  return presentSweep(sweep);
+}
+
+async function findSweep(knex: Knex, workspaceId: string, id: string): Promise<Sweep> {
+  const sweep = await Sweep.query(knex).modify('inWorkspace', workspaceId).findById(id);
+  if (!sweep) throw AppError.notFound('Sweep');
+  return sweep;
+}
+
+export async function getSweep(knex: Knex, workspaceId: string, id: string): Promise<SweepView> {
+  return presentSweep(await findSweep(knex, workspaceId, id));
+}
+
+export async function listSweeps(
+  knex: Knex,
+  workspaceId: string,
+  query: ListSweepsQuery,
+): Promise<{ items: SweepView[]; total: number }> {
+  const base = Sweep.query(knex).modify('inWorkspace', workspaceId);
+  if (query.scenarioId) base.where('sweeps.scenario_id', query.scenarioId);
+  const [rows, total] = await Promise.all([
+    base.clone().orderBy('created_at', 'desc').orderBy('id').limit(query.limit).offset(query.offset),
+    base.clone().resultSize(),
+  ]);
+  return { items: rows.map(presentSweep), total };
+}
+
+/**
+ * Point indices run with the first axis slowest (sim-core's order), so axis a's value index of a
+ * point is floor(index / stride_a) mod n_a with stride_a the product of the later axes' lengths.
+ */
+function strideOf(axes: readonly ResolvedAxis[], axis: number): number {
+  return axes.slice(axis + 1).reduce((n, a) => n * a.values.length, 1);
+}
+
+export async function getSurface(knex: Knex, workspaceId: string, id: string, query: SurfaceQuery): Promise<Surface> {
+  const sweep = await findSweep(knex, workspaceId, id);
+  const axes = sweep.axes;
+  const fields: FieldErrors = {};
+  if (query.x >= axes.length) fields.x = `must name one of the sweep's ${axes.length} axes (0…${axes.length - 1})`;
+  if (query.y >= axes.length) fields.y = `must name one of the sweep's ${axes.length} axes (0…${axes.length - 1})`;
+  if (query.x === query.y) fields.y = 'must be a different axis from x';
+  const other = [0, 1, 2].find((a) => a < axes.length && a !== query.x && a !== query.y);
+  const otherAxis = other === undefined ? undefined : axes[other];
+  if (otherAxis && query.slice >= otherAxis.values.length) {
+    fields.slice = `must be below ${otherAxis.values.length}, the number of values of axis ${other}`;
+  }
+  const xAxis = axes[query.x];
+  const yAxis = axes[query.y];
+  if (Object.keys(fields).length > 0 || !xAxis || !yAxis) throw AppError.validation(fields, 'The surface query is not valid.');
+
+  const column = query.metric === 'crackBoostPa' ? 'crack_boost_pa' : 'full_open_boost_pa';
+  const points = SweepPoint.query(knex)
+    .where('sweep_id', sweep.id)
+    .whereNotNull(column)
+    .select('point_index', column);
+  if (other !== undefined && otherAxis) {
+    points.whereRaw('(point_index / ?) % ? = ?', [strideOf(axes, other), otherAxis.values.length, query.slice]);
+  }
+
+  const z: (number | null)[][] = yAxis.values.map(() => xAxis.values.map(() => null));
+  const xStride = strideOf(axes, query.x);
+  const yStride = strideOf(axes, query.y);
+  for (const point of await points) {
+    const ix = Math.floor(point.pointIndex / xStride) % xAxis.values.length;
+    const iy = Math.floor(point.pointIndex / yStride) % yAxis.values.length;
+    const row = z[iy];
+    if (row) row[ix] = query.metric === 'crackBoostPa' ? point.crackBoostPa : point.fullOpenBoostPa;
+  }
+  return {
+    metric: query.metric,
+    x: { path: xAxis.path, values: xAxis.values },
+    y: { path: yAxis.path, values: yAxis.values },
+    z,
+  };
+}

@@ -1,0 +1,17 @@
+export {
+  SWEEP_QUEUE,
+  SWEEP_CHUNK_JOB,
+  SWEEP_CHUNK_JOB_OPTIONS,
+  sweepChunkJobSchema,
+  jobIdFor,
+  type SweepChunkJob,
+} from './queues.ts';
+export { loadWorkerConfig, WorkerConfigError, type WorkerConfig } from './config.ts';
+export {
+  processSweepChunk,
+  computePointRow,
+  markSweepFailed,
+  type SweepChunkDeps,
+  type SweepChunkOutcome,
+} from './processors/sweep-chunk.ts';
+export { createSweepWorker, type SweepWorker, type SweepWorkerOptions } from './worker.ts';
