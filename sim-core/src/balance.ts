@@ -1,5 +1,6 @@
 import { circleArea, springTotals, wastegateAreas, type WastegateAreas } from './geometry.ts'
 import { AIR } from './gas.ts'
+import { co2BottleState, type Co2BottleState } from './co2.ts'
 import type { Scenario } from './scenario.ts'
 
 /**
@@ -40,6 +41,24 @@ export interface RatioPoint {
   fullOpen: BoostOutcome
 }
 
+/** What a regulated supply (CO₂ bottle, compressor and tank) gives the top port in the static balance. */
+export interface SupplyAtBalance {
+  kind: 'co2' | 'compressor'
+  /**
+   * Gauge pressure at the regulator inlet: the bottle, or the tank at its cut-in pressure (its lowest normal one);
+   * null when the bottle's fill is impossible (see `warning`).
+   */
+  sourcePa: number | null
+  /** Gauge pressure delivered to the top port: min(setpoint, source − droop), never below zero. */
+  deliveredPa: number
+  /** The source cannot hold the setpoint. */
+  belowSetpoint: boolean
+  /** The bottle's state (CO₂ only). */
+  bottle?: Co2BottleState
+  /** A safety note for the user (a hot or overfilled bottle). */
+  warning?: string
+}
+
 export interface BalanceResult {
   areas: WastegateAreas
   seatForceN: number
@@ -56,6 +75,8 @@ export interface BalanceResult {
   ratioSweep: RatioPoint[]
   /** Crack boost above the user's boost limit. */
   overLimit: boolean
+  /** The regulated supply, or null when boost itself is the source. */
+  supply: SupplyAtBalance | null
 }
 
 /**
@@ -69,16 +90,60 @@ export function dividerFraction(feedAreaM2: number, ventAreaM2: number): number 
   return f2 + v2 === 0 ? 0 : f2 / (f2 + v2)
 }
 
-/** The gauge pressure the supply offers the top port: boost itself (α = 1) or a regulated setpoint (β). */
-function supplySource(supply: Scenario['supply']): { alpha: number; betaPa: number } {
-  if (supply.kind === 'boost') return { alpha: 1, betaPa: 0 }
-  return { alpha: 0, betaPa: supply.regulatorSetpointPa }
+const regulate = (setpointPa: number, sourcePa: number, droopPa: number) => {
+  const deliveredPa = Math.max(0, Math.min(setpointPa, sourcePa - droopPa))
+  return { deliveredPa, belowSetpoint: deliveredPa < setpointPa }
+}
+
+/**
+ * The regulated supply of MODEL.md §4: a regulator delivers min(setpoint, p_source − droop). A CO₂ bottle's
+ * pressure comes from its fill and temperature (gauge = absolute − ambient); a compressor's tank is taken at its
+ * cut-in pressure, the lowest it normally runs at, so the static answer holds for the whole compressor cycle.
+ */
+export function regulatedSupply(s: Scenario): SupplyAtBalance | null {
+  const supply = s.supply
+  if (supply.kind === 'boost') return null
+  if (supply.kind === 'compressor') {
+    return { kind: 'compressor', sourcePa: supply.cutInPa, ...regulate(supply.regulatorSetpointPa, supply.cutInPa, supply.regulatorDroopPa) }
+  }
+  let bottle: Co2BottleState
+  try {
+    bottle = co2BottleState({
+      volumeM3: supply.bottleVolumeM3,
+      massKg: supply.fillMassKg,
+      temperatureK: supply.bottleTemperatureK,
+    })
+  } catch (error) {
+    // An impossible fill: the balance stays usable at the setpoint, and the reason is shown beside it.
+    if (!(error instanceof RangeError)) throw error
+    return {
+      kind: 'co2',
+      sourcePa: null,
+      deliveredPa: supply.regulatorSetpointPa,
+      belowSetpoint: false,
+      warning: error.message,
+    }
+  }
+  const sourcePa = bottle.pressurePa - s.ambient.pressurePa
+  return {
+    kind: 'co2',
+    sourcePa,
+    ...regulate(supply.regulatorSetpointPa, sourcePa, supply.regulatorDroopPa),
+    bottle,
+    ...(bottle.warning === undefined ? {} : { warning: bottle.warning }),
+  }
+}
+
+/** The gauge pressure the supply offers the top port: boost itself (α = 1) or the regulated pressure (β). */
+function supplySource(s: Scenario): { alpha: number; betaPa: number } {
+  const regulated = regulatedSupply(s)
+  return regulated === null ? { alpha: 1, betaPa: 0 } : { alpha: 0, betaPa: regulated.deliveredPa }
 }
 
 /** Maps a port arrangement to its (α, β) pairs (MODEL.md §3). */
 export function chamberCoefficients(s: Scenario): ChamberCoefficients {
   const c = s.control
-  const src = supplySource(s.supply)
+  const src = supplySource(s)
   const none: ChamberCoefficients = { alphaTop: 0, betaTopPa: 0, alphaBottom: 0, betaBottomPa: 0 }
   switch (c.kind) {
     case 'none':
@@ -199,10 +264,10 @@ function solveBoost(s: Scenario, inp: BalanceInputs, springForceN: number, atFul
   }
 }
 
-function inputsFor(s: Scenario, ratio: number): BalanceInputs {
+function inputsFor(s: Scenario, ratio: number, chambers: ChamberCoefficients = chamberCoefficients(s)): BalanceInputs {
   return {
     areas: wastegateAreas(s.wastegate),
-    chambers: chamberCoefficients(s),
+    chambers,
     ratio,
     driveAtZeroBoostPa: s.exhaust.driveAtZeroBoostPa,
   }
@@ -242,7 +307,7 @@ export function computeBalance(s: Scenario): BalanceResult {
   const crack = solveBoost(s, inp, seatForceN, false)
   const fullOpen = solveBoost(s, inp, fullSpring, true)
   const ratioSweep = RATIO_RANGE.map((ratio) => {
-    const r = inputsFor(s, ratio)
+    const r = inputsFor(s, ratio, inp.chambers)
     return { ratio, crack: solveBoost(s, r, seatForceN, false), fullOpen: solveBoost(s, r, fullSpring, true) }
   })
   return {
@@ -258,5 +323,6 @@ export function computeBalance(s: Scenario): BalanceResult {
     forcesAtCrack: crack.status === 'opens' ? forcesAt(s, inp, seatForceN, crack.boostPa) : null,
     ratioSweep,
     overLimit: s.boostLimitPa !== undefined && crack.status === 'opens' && crack.boostPa > s.boostLimitPa,
+    supply: regulatedSupply(s),
   }
 }

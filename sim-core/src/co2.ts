@@ -134,6 +134,13 @@ export function co2BottleState(input: Co2BottleInput): Co2BottleState {
     throw new RangeError(`a CO₂ bottle at ${temperatureK} K is below the triple point ${CO2_TRIPLE_POINT_K} K (solid CO₂)`)
   }
   const rho = massKg / volumeM3
+  const densest = co2SaturatedLiquidDensityKgM3(CO2_TRIPLE_POINT_K)
+  if (rho > densest) {
+    throw new RangeError(
+      `${massKg} kg of CO₂ cannot fit in ${volumeM3 * 1000} L: ${fmt(rho, 0)} kg/m³ is denser than liquid CO₂ ever is ` +
+        `(${fmt(densest, 0)} kg/m³ at the triple point)`,
+    )
+  }
   if (temperatureK >= CO2_CRITICAL.temperatureK) {
     const pressurePa = co2PengRobinsonPressurePa(rho, temperatureK)
     const rise = riseOver10K(rho, temperatureK)

@@ -167,6 +167,8 @@ describe('co2BottleState', () => {
     expect(() => co2BottleState({ volumeM3: 0.0046, massKg: 2.27, temperatureK: 200 })).toThrow(/200 K/)
     expect(() => co2BottleState({ volumeM3: 0, massKg: 2.27, temperatureK: 300 })).toThrow(/volumeM3/)
     expect(() => co2BottleState({ volumeM3: 0.0046, massKg: -1, temperatureK: 300 })).toThrow(/massKg/)
+    // 1.5 kg/L is denser than liquid CO₂ at its triple point (about 1178 kg/m³, Span & Wagner eq. 3.14).
+    expect(() => co2BottleState({ volumeM3: 0.001, massKg: 1.5, temperatureK: 300 })).toThrow(/cannot fit/)
   })
 })
 
