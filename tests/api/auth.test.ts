@@ -1,4 +1,7 @@
+import { Writable } from 'node:stream';
+import { createApp } from '@crackpoint/api';
 import jwt from 'jsonwebtoken';
+import { pino } from 'pino';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import {
@@ -173,6 +176,29 @@ describe('GET /api/me', () => {
     expect(response.status).toBe(403);
     expect(await ctx.knex('scenarios').where({ workspace_id: demoted.id }).count<{ count: string }[]>('* as count')).toEqual([{ count: '0' }]);
     await deleteWorkspace(ctx.knex, demoted);
+  });
+});
+
+describe('request logs', () => {
+  it('never hold the password, the token or the body', async () => {
+    const lines: string[] = [];
+    const sink = new Writable({
+      write(chunk: Buffer, _encoding, done) {
+        lines.push(chunk.toString());
+        done();
+      },
+    });
+    const app = createApp({ knex: ctx.knex, queue: ctx.queue, config: ctx.config, logger: pino({ level: 'trace' }, sink) });
+    const signedIn = await request(app).post('/api/auth/sign-in').send({ email: shop.members.admin.email, password: TEST_PASSWORD });
+    await request(app).post('/api/auth/sign-in').send({ email: shop.members.admin.email, password: 'a wrong secret' });
+    await request(app).get('/api/me').set('Authorization', `Bearer ${signedIn.body.token}`);
+    const log = lines.join('');
+    expect(lines.length).toBeGreaterThanOrEqual(3);
+    expect(log).toContain('/api/me');
+    expect(log).not.toContain(TEST_PASSWORD);
+    expect(log).not.toContain('a wrong secret');
+    expect(log).not.toContain(signedIn.body.token);
+    expect(log.toLowerCase()).not.toContain('authorization');
   });
 });
 
