@@ -133,12 +133,11 @@ runMain(async () => {
       if (stopSignal !== null) break
       const hasTests = findTestFiles(suite.testDir).length > 0
       say(`Running ${suite.name}${hasTests ? '' : ' (no test files yet)'}`)
-      outcomes.push(
-        await runVitest(
-          { name: suite.name, ...suite.run, passWithNoTests: !hasTests },
-          { env, reportDir, signal: abort.signal },
-        ),
+      const outcome = await runVitest(
+        { name: suite.name, ...suite.run, passWithNoTests: !hasTests },
+        { env, reportDir, signal: abort.signal },
       )
+      outcomes.push(stopSignal === null ? outcome : { ...outcome, note: `interrupted by ${stopSignal}` })
     }
 
     for (const status of await services.status()) {

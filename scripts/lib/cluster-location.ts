@@ -13,9 +13,9 @@ export interface ClusterLocation {
 /** Where a cluster goes when the postgres user cannot reach the data folder (e.g. a repository under /root). */
 export const fallbackClusterRoot = '/var/lib/crackpoint'
 
-function fallbackFor(dataDir: string): string {
+function fallbackFor(dataDir: string, root: string): string {
   const key = createHash('sha256').update(dataDir).digest('hex').slice(0, 12)
-  return join(fallbackClusterRoot, key, 'pg')
+  return join(root, key, 'pg')
 }
 
 function canSearch(stats: Stats, account: PostgresAccount): boolean {
@@ -46,22 +46,23 @@ function firstBlockedAncestor(dir: string, account: PostgresAccount): string | n
 export function locateCluster(
   dataDir: string,
   account: PostgresAccount,
-  options: { prepare: boolean },
+  options: { prepare: boolean; fallbackRoot?: string },
 ): ClusterLocation {
+  const fallbackRoot = options.fallbackRoot ?? fallbackClusterRoot
   const inside = join(dataDir, 'pg')
   if (!account.asRoot) return { dir: inside, note: null }
 
-  const fallback = fallbackFor(dataDir)
+  const fallback = fallbackFor(dataDir, fallbackRoot)
   const fallbackNote = (why: string) =>
     `PostgreSQL runs as the postgres user, ${why}; the cluster for ${dataDir} is kept in ${fallback}.`
-  if (existsSync(fallback)) return { dir: fallback, note: fallbackNote('which cannot reach the data folder') }
+  if (existsSync(dirname(fallback))) return { dir: fallback, note: fallbackNote('which cannot reach the data folder') }
   if (!options.prepare) return { dir: inside, note: null }
 
   mkdirSync(dataDir, { recursive: true })
   const blocked = firstBlockedAncestor(dataDir, account)
   if (blocked !== null) {
     mkdirSync(dirname(fallback), { recursive: true, mode: 0o755 })
-    chmodSync(fallbackClusterRoot, 0o755)
+    chmodSync(fallbackRoot, 0o755)
     chmodSync(dirname(fallback), 0o755)
     return { dir: fallback, note: fallbackNote(`which may not enter ${blocked}`) }
   }

@@ -142,6 +142,14 @@ export function createPostgres(
   }
 
   async function startServer(dir: string) {
+    // Unix socket paths are limited to 107 bytes on Linux (sun_path); PostgreSQL's own error is easy to miss.
+    const socket = join(dir, `.s.PGSQL.${config.port}`)
+    if (Buffer.byteLength(socket) > 107) {
+      throw new ScriptError(
+        `The PostgreSQL socket path ${socket} is longer than the 107 bytes Linux allows; ` +
+          'set CRACKPOINT_DATA_DIR to a shorter folder.',
+      )
+    }
     const options = [
       '-c listen_addresses=127.0.0.1',
       `-p ${config.port}`,

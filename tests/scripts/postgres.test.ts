@@ -50,7 +50,8 @@ describe('createPostgres', () => {
     }
     await expect(
       (async () => {
-        const wrong = knexPkg({ client: 'pg', connection: url.replace(':crackpoint@', ':wrong@') })
+        const quiet = { warn() {}, error() {}, debug() {}, deprecate() {} }
+        const wrong = knexPkg({ client: 'pg', connection: url.replace(':crackpoint@', ':wrong@'), log: quiet })
         try {
           await wrong.raw('select 1')
         } finally {
