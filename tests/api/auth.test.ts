@@ -1,5 +1,8 @@
+import { mkdirSync, mkdtempSync, rmSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
 import { Writable } from 'node:stream';
-import { createApp } from '@crackpoint/api';
+import { createApp, loadConfig } from '@crackpoint/api';
 import jwt from 'jsonwebtoken';
 import { pino } from 'pino';
 import request from 'supertest';
@@ -213,5 +216,33 @@ describe('the API edge', () => {
     const response = await request(ctx.app).get('/api/no-such-thing');
     expect(response.status).toBe(404);
     expect(response.body.error.code).toBe('not_found');
+  });
+
+  it('serves the built web app with a history fallback, but never for /api', async () => {
+    const dist = mkdtempSync(join(tmpdir(), 'crackpoint-web-dist-'));
+    try {
+      mkdirSync(join(dist, 'assets'));
+      writeFileSync(join(dist, 'index.html'), '<!doctype html><title>Crackpoint test shell</title>');
+      writeFileSync(join(dist, 'assets', 'app.js'), 'console.log("crackpoint")');
+      const config = loadConfig({ ...process.env, NODE_ENV: 'test', LOG_LEVEL: 'silent', WEB_DIST: dist });
+      const app = createApp({ knex: ctx.knex, queue: ctx.queue, config });
+
+      const root = await request(app).get('/');
+      expect(root.status).toBe(200);
+      expect(root.text).toContain('Crackpoint test shell');
+      const deep = await request(app).get('/scenarios/some-id/edit');
+      expect(deep.status).toBe(200);
+      expect(deep.text).toContain('Crackpoint test shell');
+      const asset = await request(app).get('/assets/app.js');
+      expect(asset.status).toBe(200);
+      expect(asset.text).toContain('crackpoint');
+      const api = await request(app).get('/api/not-a-route');
+      expect(api.status).toBe(404);
+      expect(api.body.error.code).toBe('not_found');
+      const post = await request(app).post('/somewhere').send({});
+      expect(post.status).toBe(404);
+    } finally {
+      rmSync(dist, { recursive: true, force: true });
+    }
   });
 });

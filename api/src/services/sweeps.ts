@@ -21,6 +21,8 @@ export interface SweepDeps {
 }
 
 const ENQUEUE_BATCH = 500;
+/** A Redis that accepts the connection but never answers must not hold the request open. */
+const ENQUEUE_TIMEOUT_MS = 5000;
 const CHUNK_INSERT_BATCH = 1000;
 
 export function presentSweep(sweep: Sweep): SweepView {
@@ -37,6 +39,20 @@ export function presentSweep(sweep: Sweep): SweepView {
     startedAt: sweep.startedAt ? sweep.startedAt.toISOString() : null,
     finishedAt: sweep.finishedAt ? sweep.finishedAt.toISOString() : null,
   };
+}
+
+async function withTimeout<T>(promise: Promise<T>, ms: number, what: string): Promise<T> {
+  let timer: NodeJS.Timeout | undefined;
+  try {
+    return await Promise.race([
+      promise,
+      new Promise<never>((_resolve, reject) => {
+        timer = setTimeout(() => reject(new Error(`${what} took longer than ${ms} ms`)), ms);
+      }),
+    ]);
+  } finally {
+    clearTimeout(timer);
+  }
 }
 
 function issuesToFields(issues: { path: string; message: string }[]): FieldErrors {
@@ -93,7 +109,7 @@ export async function createSweep(deps: SweepDeps, auth: AuthContext, input: Cre
         const data: SweepChunkJob = { sweepId: sweep.id, chunkIndex };
         jobs.push({ name: SWEEP_CHUNK_JOB, data, opts: { ...SWEEP_CHUNK_JOB_OPTIONS, jobId: jobIdFor(data) } });
       }
-      await deps.queue.addBulk(jobs);
+      await withTimeout(deps.queue.addBulk(jobs), ENQUEUE_TIMEOUT_MS, 'enqueueing sweep chunks');
     }
   } catch (error) {
     deps.logger.error({ err: error, sweepId: sweep.id, chunkCount }, 'sweep saved but its chunks could not be enqueued');
