@@ -10,6 +10,7 @@ import {
   type ScenarioInput,
 } from '@crackpoint/sim-core'
 import { ApiError } from '@/api/api-error'
+import { deepEqual } from '@/composables/deep-equal'
 import { scenariosApi } from '@/api/scenarios'
 import type { ScenarioRow } from '@/api/types'
 
@@ -65,7 +66,7 @@ export const useScenarioStore = defineStore('scenario', () => {
     if (!current.value || !draft.value || !live.value) return false
     if (draftName.value.trim() !== current.value.name) return true
     if (!live.value.ok) return true
-    return JSON.stringify(live.value.scenario) !== JSON.stringify(current.value.data)
+    return !deepEqual(live.value.scenario, current.value.data)
   })
 
   async function fetchList(): Promise<void> {
