@@ -1,0 +1,138 @@
+import { basename, resolve } from 'node:path'
+import { pathToFileURL } from 'node:url'
+import { computeBalance } from './balance.ts'
+import type { FieldIssue } from './scenario.ts'
+import { parseCliArgs, USAGE, type CliOptions } from './cli/args.ts'
+import { renderBalance } from './cli/balance-report.ts'
+import { readJsonFile, readScenario, readSweep, type SweepFile } from './cli/input.ts'
+import { loadRunPull, PULL_NOT_AVAILABLE } from './cli/pull-loader.ts'
+import { renderPull } from './cli/pull-report.ts'
+import { renderStaticSweep, runStaticSweep } from './cli/sweep-report.ts'
+
+/**
+ * `npm run sim -- <balance|pull|sweep> <file> [--json] [--units us|metric]`: the model from the command line.
+ * Exit codes: 0 done, 1 bad input (file, schema, or a level this build cannot run), 2 wrong usage.
+ */
+
+export interface CliIo {
+  stdout: (text: string) => void
+  stderr: (text: string) => void
+  /** Where relative file names start: npm's INIT_CWD (where `npm run` was typed) or the process's own. */
+  cwd: string
+}
+
+/** Above these a sweep belongs on the job queue of the web app, not in a terminal. */
+export const CLI_MAX_STATIC_POINTS = 100_000
+export const CLI_MAX_DYNAMIC_POINTS = 1_000
+
+const json = (value: unknown) => JSON.stringify(value, null, 2)
+
+/** Problems with the file itself (missing, not JSON) carry the path "(file)" and need no field name. */
+const FILE_ISSUE = '(file)'
+
+function reportIssues(io: CliIo, file: string, what: string, issues: readonly FieldIssue[]): number {
+  const fileIssue = issues.find((i) => i.path === FILE_ISSUE)
+  if (fileIssue) {
+    io.stderr(`${fileIssue.message}\n`)
+    return 1
+  }
+  io.stderr(`${file} is not a valid ${what}:\n${issues.map((i) => `  ${i.path}: ${i.message}`).join('\n')}\n`)
+  return 1
+}
+
+async function balance(options: CliOptions, path: string, io: CliIo): Promise<number> {
+  const read = await readJsonFile(path)
+  if (!read.ok) return reportIssues(io, options.file, 'scenario file', read.issues)
+  const scenario = readScenario(read.value)
+  if (!scenario.ok) return reportIssues(io, options.file, 'scenario', scenario.issues)
+  const result = computeBalance(scenario.value)
+  io.stdout(options.json ? `${json(result)}\n` : `${renderBalance(basename(path), scenario.value, result, options.units)}\n`)
+  return 0
+}
+
+async function pull(options: CliOptions, path: string, io: CliIo): Promise<number> {
+  const read = await readJsonFile(path)
+  if (!read.ok) return reportIssues(io, options.file, 'scenario file', read.issues)
+  const scenario = readScenario(read.value)
+  if (!scenario.ok) return reportIssues(io, options.file, 'scenario', scenario.issues)
+  const runPull = await loadRunPull()
+  if (runPull === null) {
+    io.stderr(`${PULL_NOT_AVAILABLE}\n`)
+    return 1
+  }
+  const result = runPull(scenario.value)
+  io.stdout(options.json ? `${json(result)}\n` : `${renderPull(basename(path), scenario.value, result, options.units)}\n`)
+  return 0
+}
+
+async function sweep(options: CliOptions, path: string, io: CliIo): Promise<number> {
+  const read = await readJsonFile(path)
+  if (!read.ok) return reportIssues(io, options.file, 'sweep file', read.issues)
+  const parsed = readSweep(read.value)
+  if (!parsed.ok) return reportIssues(io, options.file, 'sweep', parsed.issues)
+  const s: SweepFile = parsed.value
+  if (s.level !== 'static') {
+    io.stderr(`level "${s.level}": ${PULL_NOT_AVAILABLE}\n`)
+    return 1
+  }
+  if (s.pointCount > CLI_MAX_STATIC_POINTS) {
+    return reportIssues(io, options.file, 'sweep for the command line', [
+      { path: 'axes', message: `give ${s.pointCount} points; the command line runs at most ${CLI_MAX_STATIC_POINTS}` },
+    ])
+  }
+  const rows = runStaticSweep(s)
+  if (options.json) {
+    io.stdout(
+      `${json({
+        level: s.level,
+        axes: s.axes,
+        pointCount: s.pointCount,
+        points: rows.map((r) => ({ index: r.index, values: r.values, ...r.static })),
+      })}\n`,
+    )
+  } else {
+    io.stdout(`${renderStaticSweep(basename(path), s, rows, options.units)}\n`)
+  }
+  return 0
+}
+
+/** Runs one command line; returns the exit code. */
+export async function main(argv: readonly string[], io: CliIo): Promise<number> {
+  const args = parseCliArgs(argv)
+  if (!args.ok) {
+    io.stderr(`${args.message}\n\n${USAGE}\n`)
+    return 2
+  }
+  if ('help' in args) {
+    io.stdout(`${USAGE}\n`)
+    return 0
+  }
+  const { options } = args
+  const path = resolve(io.cwd, options.file)
+  switch (options.command) {
+    case 'balance':
+      return balance(options, path, io)
+    case 'pull':
+      return pull(options, path, io)
+    case 'sweep':
+      return sweep(options, path, io)
+  }
+}
+
+const invokedDirectly = process.argv[1] !== undefined && import.meta.url === pathToFileURL(resolve(process.argv[1])).href
+if (invokedDirectly) {
+  const io: CliIo = {
+    stdout: (text) => process.stdout.write(text),
+    stderr: (text) => process.stderr.write(text),
+    cwd: process.env.INIT_CWD ?? process.cwd(),
+  }
+  main(process.argv.slice(2), io).then(
+    (code) => {
+      process.exitCode = code
+    },
+    (error: unknown) => {
+      process.stderr.write(`sim failed: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`)
+      process.exitCode = 70
+    },
+  )
+}

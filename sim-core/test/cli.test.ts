@@ -1,0 +1,193 @@
+import { spawnSync } from 'node:child_process'
+import { mkdtempSync, writeFileSync } from 'node:fs'
+import { tmpdir } from 'node:os'
+import { dirname, join, resolve } from 'node:path'
+import { fileURLToPath } from 'node:url'
+import { describe, expect, it } from 'vitest'
+import { main, type CliIo } from '../src/cli.ts'
+import { computeBalance, formatQuantity, parseScenario, type Scenario } from '../src/index.ts'
+
+const here = dirname(fileURLToPath(import.meta.url))
+const repoRoot = resolve(here, '../..')
+const examples = join(repoRoot, 'examples')
+const fourCylinder = join(examples, 'four-cylinder-boost-only.json')
+const sweepFile = join(examples, 'spring-by-ratio.sweep.json')
+
+interface Run {
+  code: number
+  stdout: string
+  stderr: string
+}
+
+async function run(...argv: string[]): Promise<Run> {
+  let stdout = ''
+  let stderr = ''
+  const io: CliIo = { stdout: (t) => void (stdout += t), stderr: (t) => void (stderr += t), cwd: repoRoot }
+  const code = await main(argv, io)
+  return { code, stdout, stderr }
+}
+
+const scratch = mkdtempSync(join(tmpdir(), 'crackpoint-cli-'))
+function writeJson(name: string, value: unknown): string {
+  const path = join(scratch, name)
+  writeFileSync(path, typeof value === 'string' ? value : JSON.stringify(value))
+  return path
+}
+
+async function exampleScenario(): Promise<Scenario> {
+  const { readFile } = await import('node:fs/promises')
+  const parsed = parseScenario(JSON.parse(await readFile(fourCylinder, 'utf8')))
+  if (!parsed.ok) throw new Error('the example does not parse')
+  return parsed.scenario
+}
+
+describe('sim balance', () => {
+  it('prints areas, spring, crack and full-open boost, forces at crack and the ratio range in US units', async () => {
+    const r = await run('balance', fourCylinder)
+    expect(r.code).toBe(0)
+    expect(r.stderr).toBe('')
+    const b = computeBalance(await exampleScenario())
+    if (b.crack.status !== 'opens' || b.fullOpen.status !== 'opens') throw new Error('the example should open')
+    expect(r.stdout).toContain(`crack boost      ${formatQuantity('pressure', 'us', b.crack.boostPa)}`)
+    expect(r.stdout).toContain(`full-open boost  ${formatQuantity('pressure', 'us', b.fullOpen.boostPa)}`)
+    expect(r.stdout).toContain(formatQuantity('area', 'us', b.areas.valveM2))
+    expect(r.stdout).toContain(formatQuantity('force', 'us', b.seatForceN))
+    expect(r.stdout).toMatch(/Forces at crack/)
+    expect(r.stdout).toMatch(/^ 1\.00 .*psi/m)
+    expect(r.stdout).toMatch(/^ 2\.00 .*psi/m)
+    expect(r.stdout).toMatch(/hardware makers' limits/)
+  })
+
+  it('prints the same balance in metric units', async () => {
+    const r = await run('balance', fourCylinder, '--units', 'metric')
+    const b = computeBalance(await exampleScenario())
+    if (b.crack.status !== 'opens') throw new Error('the example should open')
+    expect(r.code).toBe(0)
+    expect(r.stdout).toContain(`crack boost      ${formatQuantity('pressure', 'metric', b.crack.boostPa)}`)
+    expect(r.stdout).toContain(' mm²')
+    expect(r.stdout).not.toContain(' psi')
+  })
+
+  it('prints the balance result as JSON, in SI, with --json', async () => {
+    const r = await run('balance', fourCylinder, '--json')
+    expect(r.code).toBe(0)
+    const expected = JSON.parse(JSON.stringify(computeBalance(await exampleScenario()))) as unknown
+    expect(JSON.parse(r.stdout)).toEqual(expected)
+  })
+
+  it('shows the bottle, what the top port gets, and the warning of a hot CO₂ bottle', async () => {
+    const r = await run('balance', join(examples, 'v8-twin-co2-hot-day.json'))
+    expect(r.code).toBe(0)
+    expect(r.stdout).toMatch(/above the critical temperature: no liquid/)
+    expect(r.stdout).toMatch(/Warning: .*rises fast with temperature/)
+  })
+
+  it('exits 1 naming every bad field, and prints nothing on stdout', async () => {
+    const s = await exampleScenario()
+    const bad = writeJson('bad.json', {
+      ...s,
+      wastegate: { ...s.wastegate, valveDiameterM: -0.01 },
+      exhaust: { ...s.exhaust, ratio: 9 },
+      colour: 'red',
+    })
+    const r = await run('balance', bad)
+    expect(r.code).toBe(1)
+    expect(r.stdout).toBe('')
+    expect(r.stderr).toContain('is not a valid scenario')
+    expect(r.stderr).toContain('wastegate.valveDiameterM: must be greater than 0')
+    expect(r.stderr).toContain('exhaust.ratio: must be at most 4')
+    expect(r.stderr).toMatch(/colour: is not a known field/)
+  })
+
+  it('exits 1 for a missing file and for a file that is not JSON', async () => {
+    const missing = await run('balance', join(scratch, 'nowhere.json'))
+    expect(missing.code).toBe(1)
+    expect(missing.stderr).toMatch(/cannot read .*nowhere\.json: no such file/)
+    const broken = await run('balance', writeJson('broken.json', '{ "engine": '))
+    expect(broken.code).toBe(1)
+    expect(broken.stderr).toMatch(/broken\.json is not valid JSON/)
+  })
+
+  it('reads a relative file name from the folder the command was typed in', async () => {
+    const r = await run('balance', 'examples/four-cylinder-boost-only.json')
+    expect(r.code).toBe(0)
+  })
+})
+
+describe('sim sweep', () => {
+  it('prints every point of a static sweep, first axis slowest, with the axis values in the chosen units', async () => {
+    const r = await run('sweep', sweepFile, '--units', 'metric')
+    expect(r.code).toBe(0)
+    expect(r.stdout).toContain('35 points over springs.0.seatForceN × 7, exhaust.ratio × 5')
+    expect(r.stdout).toContain('springs.0.seatForceN (N)')
+    const rows = r.stdout.split('\n').filter((line) => /^\s*\d+\s{2}/.test(line))
+    expect(rows).toHaveLength(35)
+    expect(rows[0]).toMatch(/^ 0\s+150\s+1\s+opens\s+[\d.]+ kPa\s+[\d.]+ kPa$/)
+    expect(rows[34]).toMatch(/^34\s+450\s+2\s+opens/)
+  })
+
+  it('prints the points as JSON with --json, matching the static evaluation', async () => {
+    const r = await run('sweep', sweepFile, '--json')
+    expect(r.code).toBe(0)
+    const out = JSON.parse(r.stdout) as { pointCount: number; points: { index: number; values: number[]; crackBoostPa: number }[] }
+    expect(out.pointCount).toBe(35)
+    expect(out.points).toHaveLength(35)
+    expect(out.points[7]?.values).toEqual([200, 1.5])
+    const s = await exampleScenario()
+    const crack = computeBalance({ ...s, springs: [{ from: 'seat', seatForceN: 200, rateNPerM: 5000 }], exhaust: { ...s.exhaust, ratio: 1.5 } }).crack
+    expect(crack.status === 'opens' ? crack.boostPa : null).toBeCloseTo(out.points[7]?.crackBoostPa ?? NaN, 9)
+  })
+
+  it('exits 1 naming the scenario field, the axis and unknown keys of a bad sweep file', async () => {
+    const s = await exampleScenario()
+    const badScenario = await run('sweep', writeJson('s1.json', { scenario: { ...s, exhaust: { ...s.exhaust, ratio: 0 } }, axes: [{ path: 'exhaust.ratio', values: [1] }] }))
+    expect(badScenario.code).toBe(1)
+    expect(badScenario.stderr).toContain('scenario.exhaust.ratio: must be at least 0.5')
+    const badAxis = await run('sweep', writeJson('s2.json', { scenario: s, axes: [{ path: 'wastegate.colour', values: [1] }], extra: 1 }))
+    expect(badAxis.code).toBe(1)
+    expect(badAxis.stderr).toMatch(/extra: is not a known field/)
+    const badPath = await run('sweep', writeJson('s3.json', { scenario: s, axes: [{ path: 'wastegate.colour', values: [1] }] }))
+    expect(badPath.stderr).toMatch(/axes\.0\.path: "wastegate\.colour" is not a number in this scenario/)
+    const badLevel = await run('sweep', writeJson('s4.json', { scenario: s, axes: [{ path: 'exhaust.ratio', values: [1] }], level: 'fast' }))
+    expect(badLevel.code).toBe(1)
+    expect(badLevel.stderr).toMatch(/level: /)
+  })
+})
+
+describe('command line usage', () => {
+  it('exits 2 with the usage for an unknown command, a missing file, bad units or an unknown option', async () => {
+    for (const argv of [['frob', 'x.json'], ['balance'], ['balance', fourCylinder, '--units', 'imperial'], ['balance', fourCylinder, '--colour'], []]) {
+      const r = await run(...argv)
+      expect(r.code, argv.join(' ')).toBe(2)
+      expect(r.stderr).toContain('Usage: npm run sim --')
+      expect(r.stdout).toBe('')
+    }
+    expect((await run('balance', fourCylinder, '--units', 'imperial')).stderr).toMatch(/--units must be "us" or "metric"/)
+  })
+
+  it('prints the usage for --help', async () => {
+    const r = await run('--help')
+    expect(r.code).toBe(0)
+    expect(r.stdout).toContain('balance <scenario.json>')
+  })
+})
+
+describe('npm run sim from the repository root', () => {
+  const npm = (...args: string[]) => {
+    const env = { ...process.env }
+    delete env.INIT_CWD
+    return spawnSync('npm', ['run', '-s', 'sim', '--', ...args], { cwd: repoRoot, env, encoding: 'utf8', timeout: 60_000 })
+  }
+
+  it('forwards to the CLI and resolves the file from the root', () => {
+    const r = npm('balance', 'examples/four-cylinder-boost-only.json', '--json')
+    expect(r.status, r.stderr).toBe(0)
+    expect(JSON.parse(r.stdout)).toHaveProperty('crack.status', 'opens')
+  })
+
+  it('exits 1 with the schema message for bad input', () => {
+    const r = npm('balance', writeJson('root-bad.json', { engine: { displacementM3: -1 } }))
+    expect(r.status).toBe(1)
+    expect(r.stderr).toContain('engine.displacementM3: must be greater than 0')
+  })
+})
