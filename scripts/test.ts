@@ -88,6 +88,12 @@ runMain(async () => {
   chmodSync(tmp, 0o755)
   const reportDir = join(tmp, 'reports')
   mkdirSync(reportDir)
+  // The suites' own temporary files (browser profiles, extra clusters) go inside the run's folder, so they
+  // are removed with it even when a suite is interrupted before its own clean-up. Sticky and open to all,
+  // like /tmp, because as root the postgres user writes there too.
+  const suiteTmp = join(tmp, 'tmp')
+  mkdirSync(suiteTmp)
+  chmodSync(suiteTmp, 0o1777)
 
   const outcomes: VitestOutcome[] = []
   const failedSteps: string[] = []
@@ -128,6 +134,7 @@ runMain(async () => {
       NODE_ENV: 'test',
       CHROMIUM_PATH: config.chromiumPath,
       WEB_DIST: config.webDist,
+      TMPDIR: suiteTmp,
     }
     for (const suite of selected) {
       if (stopSignal !== null) break
