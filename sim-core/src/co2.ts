@@ -109,9 +109,61 @@ export interface Co2BottleState {
 const MPA = 1e6
 const fmt = (x: number, places: number) => x.toFixed(places)
 
+/** Liquid CO₂ is densest at its triple point (Span & Wagner eq. 3.14 there, about 1178 kg/m³). */
+const DENSEST_KG_M3 = co2SaturatedLiquidDensityKgM3(CO2_TRIPLE_POINT_K)
+
 /** The rise of bottle pressure over the next 10 K at the fill density, for the warning. */
 function riseOver10K(densityKgM3: number, temperatureK: number): number {
   return co2PengRobinsonPressurePa(densityKgM3, temperatureK + 10) - co2PengRobinsonPressurePa(densityKgM3, temperatureK)
+}
+
+interface Phase {
+  phase: Co2Phase
+  pressurePa: number
+  fillDensityKgM3: number
+  /** Saturated densities (below T_c only). */
+  liquidKgM3: number
+  vapourKgM3: number
+}
+
+function checkBottle({ volumeM3, massKg, temperatureK }: Co2BottleInput): number {
+  for (const [name, value] of [['volumeM3', volumeM3], ['massKg', massKg], ['temperatureK', temperatureK]] as const) {
+    if (!Number.isFinite(value) || value <= 0) throw new RangeError(`${name} must be a positive number, got ${value}`)
+  }
+  if (temperatureK < CO2_TRIPLE_POINT_K) {
+    throw new RangeError(`a CO₂ bottle at ${temperatureK} K is below the triple point ${CO2_TRIPLE_POINT_K} K (solid CO₂)`)
+  }
+  const rho = massKg / volumeM3
+  if (rho > DENSEST_KG_M3) {
+    throw new RangeError(
+      `${massKg} kg of CO₂ cannot fit in ${volumeM3 * 1000} L: ${fmt(rho, 0)} kg/m³ is denser than liquid CO₂ ever is ` +
+        `(${fmt(DENSEST_KG_M3, 0)} kg/m³ at the triple point)`,
+    )
+  }
+  return rho
+}
+
+/** Phase and pressure of a checked fill density (see co2BottleState). */
+function phaseOf(rho: number, temperatureK: number): Phase {
+  if (temperatureK >= CO2_CRITICAL.temperatureK) {
+    const pressurePa = co2PengRobinsonPressurePa(rho, temperatureK)
+    return { phase: 'supercritical', pressurePa, fillDensityKgM3: rho, liquidKgM3: Number.NaN, vapourKgM3: Number.NaN }
+  }
+  const pSat = co2SaturationPressurePa(temperatureK)
+  const liquidKgM3 = co2SaturatedLiquidDensityKgM3(temperatureK)
+  const vapourKgM3 = co2SaturatedVapourDensityKgM3(temperatureK)
+  const at = (phase: Co2Phase, pressurePa: number): Phase => ({ phase, pressurePa, fillDensityKgM3: rho, liquidKgM3, vapourKgM3 })
+  if (rho <= vapourKgM3) return at('gas', Math.min(co2PengRobinsonPressurePa(rho, temperatureK), pSat))
+  if (rho >= liquidKgM3) return at('liquid-full', Math.max(co2PengRobinsonPressurePa(rho, temperatureK), pSat))
+  return at('two-phase', pSat)
+}
+
+/**
+ * Bottle pressure alone, Pa absolute: the pressure of co2BottleState without the phase split or the warning
+ * text, for use inside a time step.
+ */
+export function co2BottlePressurePa(input: Co2BottleInput): number {
+  return phaseOf(checkBottle(input), input.temperatureK).pressurePa
 }
 
 /**
@@ -124,71 +176,46 @@ function riseOver10K(densityKgM3: number, temperatureK: number): number {
  * - Above ρ′ (below T_c): the liquid fills the bottle. Peng–Robinson at the fill density, never below p_sat(T);
  *   Peng–Robinson's liquid is too light, so this pressure is an estimate only, and a warning is given.
  * - At or above T_c: one supercritical phase, Peng–Robinson at the fill density, with a warning.
+ *
+ * Throws a RangeError for a non-positive input, a bottle below the triple point, or more CO₂ than can fit.
  */
 export function co2BottleState(input: Co2BottleInput): Co2BottleState {
   const { volumeM3, massKg, temperatureK } = input
-  for (const [name, value] of [['volumeM3', volumeM3], ['massKg', massKg], ['temperatureK', temperatureK]] as const) {
-    if (!Number.isFinite(value) || value <= 0) throw new RangeError(`${name} must be a positive number, got ${value}`)
-  }
-  if (temperatureK < CO2_TRIPLE_POINT_K) {
-    throw new RangeError(`a CO₂ bottle at ${temperatureK} K is below the triple point ${CO2_TRIPLE_POINT_K} K (solid CO₂)`)
-  }
-  const rho = massKg / volumeM3
-  const densest = co2SaturatedLiquidDensityKgM3(CO2_TRIPLE_POINT_K)
-  if (rho > densest) {
-    throw new RangeError(
-      `${massKg} kg of CO₂ cannot fit in ${volumeM3 * 1000} L: ${fmt(rho, 0)} kg/m³ is denser than liquid CO₂ ever is ` +
-        `(${fmt(densest, 0)} kg/m³ at the triple point)`,
-    )
-  }
-  if (temperatureK >= CO2_CRITICAL.temperatureK) {
-    const pressurePa = co2PengRobinsonPressurePa(rho, temperatureK)
-    const rise = riseOver10K(rho, temperatureK)
-    return {
-      pressurePa,
-      liquidMassKg: 0,
-      vapourMassKg: massKg,
-      phase: 'supercritical',
-      fillDensityKgM3: rho,
-      warning:
-        `CO₂ at ${fmt(temperatureK - 273.15, 1)} °C is above its critical temperature (30.98 °C): there is no liquid, and ` +
-        `bottle pressure (about ${fmt(pressurePa / MPA, 1)} MPa here) rises fast with temperature, about ` +
-        `${fmt(rise / MPA, 1)} MPa per further 10 K at this fill. Keep the bottle within its maker's rated temperature ` +
-        `and pressure; its burst disc and rating, not this estimate, set the limit.`,
+  const rho = checkBottle(input)
+  const state = phaseOf(rho, temperatureK)
+  const { pressurePa } = state
+  switch (state.phase) {
+    case 'supercritical':
+      return {
+        pressurePa,
+        liquidMassKg: 0,
+        vapourMassKg: massKg,
+        phase: 'supercritical',
+        fillDensityKgM3: rho,
+        warning:
+          `CO₂ at ${fmt(temperatureK - 273.15, 1)} °C is above its critical temperature (30.98 °C): there is no liquid, and ` +
+          `bottle pressure (about ${fmt(pressurePa / MPA, 1)} MPa here) rises fast with temperature, about ` +
+          `${fmt(riseOver10K(rho, temperatureK) / MPA, 1)} MPa per further 10 K at this fill. Keep the bottle within its ` +
+          `maker's rated temperature and pressure; its burst disc and rating, not this estimate, set the limit.`,
+      }
+    case 'gas':
+      return { pressurePa, liquidMassKg: 0, vapourMassKg: massKg, phase: 'gas', fillDensityKgM3: rho }
+    case 'liquid-full':
+      return {
+        pressurePa,
+        liquidMassKg: massKg,
+        vapourMassKg: 0,
+        phase: 'liquid-full',
+        fillDensityKgM3: rho,
+        warning:
+          `the bottle is full of liquid at ${fmt(temperatureK - 273.15, 1)} °C (fill ${fmt(rho, 0)} kg/m³, saturated liquid ` +
+          `${fmt(state.liquidKgM3, 0)} kg/m³): any further warming raises its pressure very steeply, and the pressure ` +
+          `shown is a rough estimate. Check the fill against the bottle maker's rating; the burst disc is there for this.`,
+      }
+    case 'two-phase': {
+      const vapourMassKg = (volumeM3 - massKg / state.liquidKgM3) / (1 / state.vapourKgM3 - 1 / state.liquidKgM3)
+      return { pressurePa, liquidMassKg: massKg - vapourMassKg, vapourMassKg, phase: 'two-phase', fillDensityKgM3: rho }
     }
-  }
-  const pSat = co2SaturationPressurePa(temperatureK)
-  const rhoLiquid = co2SaturatedLiquidDensityKgM3(temperatureK)
-  const rhoVapour = co2SaturatedVapourDensityKgM3(temperatureK)
-  if (rho <= rhoVapour) {
-    return {
-      pressurePa: Math.min(co2PengRobinsonPressurePa(rho, temperatureK), pSat),
-      liquidMassKg: 0,
-      vapourMassKg: massKg,
-      phase: 'gas',
-      fillDensityKgM3: rho,
-    }
-  }
-  if (rho >= rhoLiquid) {
-    return {
-      pressurePa: Math.max(co2PengRobinsonPressurePa(rho, temperatureK), pSat),
-      liquidMassKg: massKg,
-      vapourMassKg: 0,
-      phase: 'liquid-full',
-      fillDensityKgM3: rho,
-      warning:
-        `the bottle is full of liquid at ${fmt(temperatureK - 273.15, 1)} °C (fill ${fmt(rho, 0)} kg/m³, saturated liquid ` +
-        `${fmt(rhoLiquid, 0)} kg/m³): any further warming raises its pressure very steeply, and the pressure shown is ` +
-        `a rough estimate. Check the fill against the bottle maker's rating; the burst disc is there for this.`,
-    }
-  }
-  const vapourMassKg = (volumeM3 - massKg / rhoLiquid) / (1 / rhoVapour - 1 / rhoLiquid)
-  return {
-    pressurePa: pSat,
-    liquidMassKg: massKg - vapourMassKg,
-    vapourMassKg,
-    phase: 'two-phase',
-    fillDensityKgM3: rho,
   }
 }
 

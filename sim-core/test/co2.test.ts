@@ -3,6 +3,7 @@ import {
   CO2_CRITICAL,
   CO2_GAS_CONSTANT,
   CO2_PENG_ROBINSON,
+  co2BottlePressurePa,
   co2BottleState,
   co2GasDensityKgM3,
   co2GasMassPerLitreKg,
@@ -161,6 +162,17 @@ describe('co2BottleState', () => {
     expect(s.vapourMassKg).toBe(0)
     expect(s.pressurePa).toBeGreaterThanOrEqual(co2SaturationPressurePa(celsius(25)))
     expect(s.warning).toMatch(/full of liquid/)
+  })
+
+  it('gives the same pressure through the pressure-only path in every phase', () => {
+    const cases = [
+      { volumeM3: 0.0046, massKg: 2.27, temperatureK: celsius(20) },
+      { volumeM3: 0.0046, massKg: 0.012, temperatureK: celsius(20) },
+      { volumeM3: 0.001, massKg: 0.74, temperatureK: celsius(25) },
+      { volumeM3: 0.0046, massKg: 2.27, temperatureK: celsius(45) },
+    ]
+    expect(cases.map((c) => co2BottleState(c).phase)).toEqual(['two-phase', 'gas', 'liquid-full', 'supercritical'])
+    for (const c of cases) expect(co2BottlePressurePa(c)).toBe(co2BottleState(c).pressurePa)
   })
 
   it('refuses a bottle below the triple point and non-positive inputs, naming them', () => {
