@@ -33,3 +33,23 @@ export function answerJson(status: number, body: unknown) {
   }
   return { fetchStub, calls }
 }
+
+type Handler = (body: unknown, url: URL) => [status: number, body: unknown]
+
+/**
+ * A fetch stand-in that answers by "METHOD /path" (query left out), recording every request in order.
+ * An unexpected request answers 599 so the test sees it fail rather than hang.
+ */
+export function routeFetch(handlers: Record<string, Handler>) {
+  const requests: { key: string; url: URL; body: unknown; headers: Record<string, string> }[] = []
+  const fetchStub = async (input: string | URL | Request, init?: RequestInit) => {
+    const url = new URL(String(input), 'http://localhost')
+    const key = `${init?.method ?? 'GET'} ${url.pathname}`
+    const body = typeof init?.body === 'string' ? (JSON.parse(init.body) as unknown) : undefined
+    requests.push({ key, url, body, headers: { ...(init?.headers as Record<string, string> | undefined) } })
+    const handler = handlers[key]
+    const [status, answer] = handler ? handler(body, url) : [599, { error: { code: 'unexpected', message: key } }]
+    return new Response(JSON.stringify(answer), { status, headers: { 'Content-Type': 'application/json' } })
+  }
+  return { fetchStub, requests }
+}

@@ -95,6 +95,11 @@ export const useScenarioStore = defineStore('scenario', () => {
   async function load(id: string): Promise<void> {
     loading.value = true
     loadError.value = null
+    // Another scenario's form must not show, even for a moment, under this one's address.
+    if (current.value && current.value.id !== id) {
+      current.value = null
+      draft.value = null
+    }
     try {
       open((await scenariosApi.get(id)).scenario)
     } catch (error) {
