@@ -44,6 +44,9 @@ const envSchema = z
     SWEEP_CHUNK_SIZE: z.coerce.number().int().min(1).max(10_000).default(250),
     SWEEP_MAX_POINTS: z.coerce.number().int().min(1).max(10_000_000).default(100_000),
     SIGN_IN_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(10_000).default(10),
+    SIGN_IN_ADDRESS_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(100_000).default(60),
+    REGISTER_LIMIT_PER_HOUR: z.coerce.number().int().min(1).max(100_000).default(10),
+    CHANGE_PASSWORD_LIMIT_PER_15_MINUTES: z.coerce.number().int().min(1).max(10_000).default(10),
   })
   .superRefine((env, ctx) => {
     if (env.NODE_ENV === 'production' && env.JWT_SECRET === DEV_JWT_SECRET) {
@@ -65,7 +68,13 @@ export interface Config {
   readonly bcryptCost: number;
   readonly sweepChunkSize: number;
   readonly sweepMaxPoints: number;
+  /** Failed sign-ins per account and minute. */
   readonly signInLimitPerMinute: number;
+  /** Failed sign-ins per client address and minute, over all accounts. */
+  readonly signInAddressLimitPerMinute: number;
+  readonly registerLimitPerHour: number;
+  /** Failed password changes per member and quarter hour. */
+  readonly changePasswordLimitPer15Minutes: number;
 }
 
 export class ConfigError extends Error {
@@ -97,5 +106,8 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     sweepChunkSize: e.SWEEP_CHUNK_SIZE,
     sweepMaxPoints: e.SWEEP_MAX_POINTS,
     signInLimitPerMinute: e.SIGN_IN_LIMIT_PER_MINUTE,
+    signInAddressLimitPerMinute: e.SIGN_IN_ADDRESS_LIMIT_PER_MINUTE,
+    registerLimitPerHour: e.REGISTER_LIMIT_PER_HOUR,
+    changePasswordLimitPer15Minutes: e.CHANGE_PASSWORD_LIMIT_PER_15_MINUTES,
   });
 }

@@ -11,3 +11,4 @@ export {
   type SeedResult,
 } from './seed/seed-demo-workspace.ts';
 export type { SweepQueue } from './services/sweeps.ts';
+export { routeTable, allows, ROLES, type AnyRoute, type Access, type Scope } from './routes/index.ts';

@@ -18,8 +18,13 @@ export interface ErrorBody {
 export function zodFields(error: ZodError, prefix = ''): FieldErrors {
   const fields: FieldErrors = {};
   for (const issue of error.issues) {
-    const path = [prefix, ...issue.path.map(String)].filter((part) => part !== '').join('.') || 'body';
-    fields[path] ??= issue.message;
+    const base = [prefix, ...issue.path.map(String)].filter((part) => part !== '');
+    // A field the request does not know is named itself, not the object around it.
+    if (issue.code === 'unrecognized_keys') {
+      for (const key of issue.keys) fields[[...base, key].join('.')] ??= 'is not a known field';
+      continue;
+    }
+    fields[base.join('.') || 'body'] ??= issue.message;
   }
   return fields;
 }

@@ -1,16 +1,19 @@
-import { Router } from 'express';
-import type { Knex } from 'knex';
-import type { Config } from '../config.ts';
-import { authenticate } from '../middleware/authenticate.ts';
-import { parseInput } from '../schemas/common.ts';
-import { balanceBodySchema } from '../schemas/scenarios.ts';
+import { balanceBodySchema, balanceResponseSchema } from '../schemas/balance.ts';
 import { balanceOf } from '../services/balance.ts';
+import { defineRoute, ROLES } from './route-def.ts';
 
-export function balanceRoutes(deps: { knex: Knex; config: Config }): Router {
-  const router = Router();
-  // Every role may compute a balance: it is instant, stores nothing and counts against no quota.
-  router.post('/balance', authenticate(deps), (req, res) => {
-    res.json(balanceOf(parseInput(balanceBodySchema, req.body).scenario));
-  });
-  return router;
-}
+export const balanceRoutes = [
+  defineRoute({
+    id: 'computeBalance',
+    method: 'post',
+    path: '/balance',
+    summary: 'Static force balance (crack and full-open boost) of a scenario sent in the body',
+    tag: 'Scenarios',
+    // Every role: it is instant, stores nothing and counts against no quota.
+    access: ROLES.everyone,
+    scope: 'self',
+    body: balanceBodySchema,
+    success: { status: 200, description: 'The balance', schema: balanceResponseSchema },
+    handler: ({ body }) => balanceOf(body.scenario),
+  }),
+];

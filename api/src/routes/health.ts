@@ -1,35 +1,27 @@
-import { Router } from 'express';
-import type { Knex } from 'knex';
-import type { SweepQueue } from '../services/sweeps.ts';
+import { z } from 'zod';
+import { defineRoute, Reply } from './route-def.ts';
+import { checkHealth } from '../services/health.ts';
 
-const CHECK_TIMEOUT_MS = 2000;
+const healthSchema = z.object({
+  status: z.enum(['ok', 'degraded']),
+  database: z.enum(['ok', 'down']),
+  queue: z.enum(['ok', 'down']),
+});
 
-async function check(probe: () => Promise<unknown>): Promise<'ok' | 'down'> {
-  let timer: NodeJS.Timeout | undefined;
-  try {
-    await Promise.race([
-      probe(),
-      new Promise((_resolve, reject) => {
-        timer = setTimeout(() => reject(new Error('timed out')), CHECK_TIMEOUT_MS);
-      }),
-    ]);
-    return 'ok';
-  } catch {
-    return 'down';
-  } finally {
-    clearTimeout(timer);
-  }
-}
-
-export function healthRoutes(knex: Knex, queue: SweepQueue): Router {
-  const router = Router();
-  router.get('/health', async (_req, res) => {
-    const [database, sweepQueue] = await Promise.all([
-      check(() => knex.raw('select 1')),
-      check(() => queue.getJobCounts('waiting')),
-    ]);
-    const ok = database === 'ok' && sweepQueue === 'ok';
-    res.status(ok ? 200 : 503).json({ status: ok ? 'ok' : 'degraded', database, queue: sweepQueue });
-  });
-  return router;
-}
+export const healthRoutes = [
+  defineRoute({
+    id: 'getHealth',
+    method: 'get',
+    path: '/health',
+    summary: 'Whether the database and the sweep queue answer',
+    tag: 'Service',
+    access: 'public',
+    scope: 'public',
+    success: { status: 200, description: 'Both answer (503 with the same body when one does not)', schema: healthSchema },
+    errors: [503],
+    handler: async ({ deps }) => {
+      const health = await checkHealth(deps.knex, deps.queue);
+      return new Reply(health.status === 'ok' ? 200 : 503, health);
+    },
+  }),
+];

@@ -1,21 +1,16 @@
-import { Router } from 'express';
+import type { Router } from 'express';
 import { AppError } from '../errors/index.ts';
-import type { SweepDeps } from '../services/sweeps.ts';
-import { authRoutes } from './auth.ts';
-import { balanceRoutes } from './balance.ts';
-import { healthRoutes } from './health.ts';
-import { scenarioRoutes } from './scenarios.ts';
-import { sweepRoutes } from './sweeps.ts';
+import { buildRouter } from './build-router.ts';
+import type { ApiDeps } from './route-def.ts';
+import { routeTable } from './route-table.ts';
 
-export function apiRoutes(deps: SweepDeps): Router {
-  const router = Router();
-  router.use(healthRoutes(deps.knex, deps.queue));
-  router.use(authRoutes(deps));
-  router.use(scenarioRoutes(deps));
-  router.use(balanceRoutes(deps));
-  router.use(sweepRoutes(deps));
+export function apiRoutes(deps: ApiDeps): Router {
+  const router = buildRouter(routeTable, deps);
   router.use(() => {
     throw new AppError(404, 'not_found', 'There is no such API route.');
   });
   return router;
 }
+
+export { routeTable } from './route-table.ts';
+export { allows, ROLES, type AnyRoute, type Access, type Scope } from './route-def.ts';

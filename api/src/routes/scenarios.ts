@@ -1,32 +1,64 @@
-import { Router } from 'express';
-import type { Knex } from 'knex';
-import type { Config } from '../config.ts';
-import { authenticate, authOf, requireRole } from '../middleware/authenticate.ts';
-import { paginationQuerySchema, parseId, parseInput } from '../schemas/common.ts';
-import { createScenarioBodySchema, updateScenarioBodySchema } from '../schemas/scenarios.ts';
+import { idParamsSchema, paginationQuerySchema } from '../schemas/common.ts';
+import {
+  createScenarioBodySchema,
+  scenarioListSchema,
+  scenarioResponseSchema,
+  updateScenarioBodySchema,
+} from '../schemas/scenarios.ts';
 import { createScenario, getScenario, listScenarios, updateScenario } from '../services/scenarios.ts';
+import { defineRoute, ROLES } from './route-def.ts';
 
-export function scenarioRoutes(deps: { knex: Knex; config: Config }): Router {
-  const { knex } = deps;
-  const router = Router();
-  router.use('/scenarios', authenticate(deps));
-
-  router.get('/scenarios', async (req, res) => {
-    res.json(await listScenarios(knex, authOf(req).workspaceId, parseInput(paginationQuerySchema, req.query)));
-  });
-
-  router.get('/scenarios/:id', async (req, res) => {
-    res.json({ scenario: await getScenario(knex, authOf(req).workspaceId, parseId(req.params.id, 'Scenario')) });
-  });
-
-  router.post('/scenarios', requireRole('admin', 'engineer', 'builder'), async (req, res) => {
-    res.status(201).json({ scenario: await createScenario(knex, authOf(req), parseInput(createScenarioBodySchema, req.body)) });
-  });
-
-  router.patch('/scenarios/:id', requireRole('admin', 'engineer', 'builder'), async (req, res) => {
-    const id = parseId(req.params.id, 'Scenario');
-    res.json({ scenario: await updateScenario(knex, authOf(req), id, parseInput(updateScenarioBodySchema, req.body)) });
-  });
-
-  return router;
-}
+export const scenarioRoutes = [
+  defineRoute({
+    id: 'listScenarios',
+    method: 'get',
+    path: '/scenarios',
+    summary: "The workspace's scenarios, most recently changed first",
+    tag: 'Scenarios',
+    access: ROLES.everyone,
+    scope: 'collection',
+    query: paginationQuerySchema,
+    success: { status: 200, description: 'One page of scenarios', schema: scenarioListSchema },
+    handler: ({ deps, auth, query }) => listScenarios(deps.knex, auth.workspaceId, query),
+  }),
+  defineRoute({
+    id: 'getScenario',
+    method: 'get',
+    path: '/scenarios/:id',
+    summary: 'One scenario',
+    tag: 'Scenarios',
+    access: ROLES.everyone,
+    scope: 'object',
+    resource: 'Scenario',
+    params: idParamsSchema,
+    success: { status: 200, description: 'The scenario', schema: scenarioResponseSchema },
+    handler: async ({ deps, auth, params }) => ({ scenario: await getScenario(deps.knex, auth.workspaceId, params.id) }),
+  }),
+  defineRoute({
+    id: 'createScenario',
+    method: 'post',
+    path: '/scenarios',
+    summary: 'Create a scenario (the default scenario when data is left out)',
+    tag: 'Scenarios',
+    access: ROLES.compute,
+    scope: 'collection',
+    body: createScenarioBodySchema,
+    success: { status: 201, description: 'Created', schema: scenarioResponseSchema },
+    handler: async ({ deps, auth, body }) => ({ scenario: await createScenario(deps.knex, auth, body) }),
+  }),
+  defineRoute({
+    id: 'updateScenario',
+    method: 'patch',
+    path: '/scenarios/:id',
+    summary: 'Rename or change a scenario; the version must be the one last read',
+    tag: 'Scenarios',
+    access: ROLES.compute,
+    scope: 'object',
+    resource: 'Scenario',
+    params: idParamsSchema,
+    body: updateScenarioBodySchema,
+    success: { status: 200, description: 'Changed, with the version one higher', schema: scenarioResponseSchema },
+    errors: [409],
+    handler: async ({ deps, auth, params, body }) => ({ scenario: await updateScenario(deps.knex, auth, params.id, body) }),
+  }),
+];

@@ -1,29 +1,65 @@
-import { Router } from 'express';
-import { authenticate, authOf, requireRole } from '../middleware/authenticate.ts';
-import { parseId, parseInput } from '../schemas/common.ts';
-import { createSweepBodySchema, listSweepsQuerySchema, surfaceQuerySchema } from '../schemas/sweeps.ts';
-import { createSweep, getSurface, getSweep, listSweeps, type SweepDeps } from '../services/sweeps.ts';
+import { idParamsSchema } from '../schemas/common.ts';
+import {
+  createSweepBodySchema,
+  listSweepsQuerySchema,
+  surfaceQuerySchema,
+  surfaceSchema,
+  sweepListSchema,
+  sweepResponseSchema,
+} from '../schemas/sweeps.ts';
+import { createSweep, getSurface, getSweep, listSweeps } from '../services/sweeps.ts';
+import { defineRoute, ROLES } from './route-def.ts';
 
-export function sweepRoutes(deps: SweepDeps): Router {
-  const router = Router();
-  router.use('/sweeps', authenticate(deps));
-
-  router.post('/sweeps', requireRole('admin', 'engineer', 'builder'), async (req, res) => {
-    res.status(201).json({ sweep: await createSweep(deps, authOf(req), parseInput(createSweepBodySchema, req.body)) });
-  });
-
-  router.get('/sweeps', async (req, res) => {
-    res.json(await listSweeps(deps.knex, authOf(req).workspaceId, parseInput(listSweepsQuerySchema, req.query)));
-  });
-
-  router.get('/sweeps/:id', async (req, res) => {
-    res.json({ sweep: await getSweep(deps.knex, authOf(req).workspaceId, parseId(req.params.id, 'Sweep')) });
-  });
-
-  router.get('/sweeps/:id/surface', async (req, res) => {
-    const id = parseId(req.params.id, 'Sweep');
-    res.json(await getSurface(deps.knex, authOf(req).workspaceId, id, parseInput(surfaceQuerySchema, req.query)));
-  });
-
-  return router;
-}
+export const sweepRoutes = [
+  defineRoute({
+    id: 'createSweep',
+    method: 'post',
+    path: '/sweeps',
+    summary: 'Start a sweep of a scenario over one to three axes',
+    tag: 'Sweeps',
+    access: ROLES.compute,
+    scope: 'reference',
+    body: createSweepBodySchema,
+    success: { status: 201, description: 'Queued', schema: sweepResponseSchema },
+    handler: async ({ deps, auth, body }) => ({ sweep: await createSweep(deps, auth, body) }),
+  }),
+  defineRoute({
+    id: 'listSweeps',
+    method: 'get',
+    path: '/sweeps',
+    summary: "The workspace's sweeps, newest first, optionally of one scenario",
+    tag: 'Sweeps',
+    access: ROLES.everyone,
+    scope: 'collection',
+    query: listSweepsQuerySchema,
+    success: { status: 200, description: 'One page of sweeps', schema: sweepListSchema },
+    handler: ({ deps, auth, query }) => listSweeps(deps.knex, auth.workspaceId, query),
+  }),
+  defineRoute({
+    id: 'getSweep',
+    method: 'get',
+    path: '/sweeps/:id',
+    summary: 'One sweep and its progress',
+    tag: 'Sweeps',
+    access: ROLES.everyone,
+    scope: 'object',
+    resource: 'Sweep',
+    params: idParamsSchema,
+    success: { status: 200, description: 'The sweep', schema: sweepResponseSchema },
+    handler: async ({ deps, auth, params }) => ({ sweep: await getSweep(deps.knex, auth.workspaceId, params.id) }),
+  }),
+  defineRoute({
+    id: 'getSweepSurface',
+    method: 'get',
+    path: '/sweeps/:id/surface',
+    summary: 'A result of the sweep over two of its axes, z[iy][ix]',
+    tag: 'Sweeps',
+    access: ROLES.everyone,
+    scope: 'object',
+    resource: 'Sweep',
+    params: idParamsSchema,
+    query: surfaceQuerySchema,
+    success: { status: 200, description: 'The surface; null where a point has no value', schema: surfaceSchema },
+    handler: ({ deps, auth, params, query }) => getSurface(deps.knex, auth.workspaceId, params.id, query),
+  }),
+];

@@ -18,6 +18,9 @@ export function parseId(value: unknown, what: string): string {
   return parsed.data;
 }
 
+/** A path that names one record by its id; the router turns a failure into that record's 404. */
+export const idParamsSchema = z.strictObject({ id: uuidSchema });
+
 export const paginationQuerySchema = z.object({
   limit: z.coerce.number().int().min(1).max(200).default(50),
   offset: z.coerce.number().int().min(0).default(0),

@@ -34,4 +34,6 @@ export const scenarioRowSchema = z.object({
 });
 export type ScenarioRow = z.infer<typeof scenarioRowSchema>;
 
-export const balanceBodySchema = z.strictObject({ scenario: z.unknown() });
+
+export const scenarioResponseSchema = z.object({ scenario: scenarioRowSchema });
+export const scenarioListSchema = z.object({ items: z.array(scenarioRowSchema), total: z.number().int() });

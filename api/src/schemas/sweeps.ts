@@ -55,3 +55,6 @@ export const surfaceSchema = z.object({
   z: z.array(z.array(z.number().nullable())),
 });
 export type Surface = z.infer<typeof surfaceSchema>;
+
+export const sweepResponseSchema = z.object({ sweep: sweepViewSchema });
+export const sweepListSchema = z.object({ items: z.array(sweepViewSchema), total: z.number().int() });

@@ -25,6 +25,14 @@ describe('toErrorResponse', () => {
     expect(Object.keys(zodFields(zodErrorOf(z.object({}), 'text')))).toEqual(['body']);
   });
 
+  it('names each unknown field itself rather than the object around it', () => {
+    const body = z.strictObject({ name: z.string(), data: z.strictObject({ ratio: z.number() }) });
+    expect(zodFields(zodErrorOf(body, { name: 'x', colour: 'red', data: { ratio: 1, extra: 2 } }))).toEqual({
+      colour: 'is not a known field',
+      'data.extra': 'is not a known field',
+    });
+  });
+
   it('keeps an AppError as it is', () => {
     const { status, body } = toErrorResponse(AppError.conflict('version_conflict', 'Reload it.'));
     expect(status).toBe(409);

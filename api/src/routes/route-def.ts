@@ -1,0 +1,107 @@
+import type { Knex } from 'knex';
+import type { Logger } from 'pino';
+import type { z } from 'zod';
+import type { Config } from '../config.ts';
+import { USER_ROLES, type UserRole } from '../models/index.ts';
+import type { AuthContext } from '../services/auth.ts';
+import type { SweepQueue } from '../services/sweeps.ts';
+
+/** Everything a handler may hand on to a service. */
+export interface ApiDeps {
+  knex: Knex;
+  config: Config;
+  queue: SweepQueue;
+  logger: Logger;
+}
+
+export type HttpMethod = 'get' | 'post' | 'patch' | 'put' | 'delete';
+
+/** Who may call a route: anyone (no token), or signed-in members holding one of the roles. */
+export type Access = 'public' | readonly UserRole[];
+
+/**
+ * How a route meets workspace data, which is what the authorization matrix checks on the "foreign" side:
+ * - `object`: the path names one workspace record; another workspace's answers 404 like a missing one.
+ * - `reference`: the body names workspace records; another workspace's are refused like missing ones.
+ * - `collection`: lists or creates within the caller's workspace; another workspace's records never show.
+ * - `self`: about the caller only (their account, a computation on what they send).
+ * - `public`: no account at all.
+ */
+export type Scope = 'object' | 'reference' | 'collection' | 'self' | 'public';
+
+export type LimiterName = 'signInPerAddress' | 'signInPerAccount' | 'register' | 'changePassword';
+
+/** Role sets of DESIGN.md's table, named once so every route says which rule it follows. */
+export const ROLES = {
+  everyone: USER_ROLES,
+  /** Create, edit and run scenarios, pulls and sweeps (builders only their own scenarios). */
+  compute: ['admin', 'engineer', 'builder'],
+  /** Edit the shared hardware library. */
+  libraryEditors: ['admin', 'engineer'],
+} as const satisfies Record<string, readonly UserRole[]>;
+
+/** A handler answers with its route's success status, or with another one through Reply. */
+export class Reply {
+  constructor(
+    readonly status: number,
+    readonly body: unknown,
+  ) {}
+}
+
+export interface HandlerInput<P, Q, B, A extends Access> {
+  deps: ApiDeps;
+  auth: A extends 'public' ? undefined : AuthContext;
+  params: P;
+  query: Q;
+  body: B;
+}
+
+type Out<S> = S extends z.ZodType ? z.output<S> : undefined;
+
+export interface RouteSpec<
+  P extends z.ZodType | undefined,
+  Q extends z.ZodType | undefined,
+  B extends z.ZodType | undefined,
+  A extends Access,
+> {
+  /** Stable name: the OpenAPI operationId and the key of the route's test fixture. */
+  id: string;
+  method: HttpMethod;
+  /** Express syntax under /api, e.g. `/scenarios/:id`. */
+  path: string;
+  summary: string;
+  tag: string;
+  access: A;
+  scope: Scope;
+  /** What the path names, for the 404 of an id that is not one ("Scenario was not found."). */
+  resource?: string;
+  params?: P;
+  query?: Q;
+  body?: B;
+  /** The body may be left out entirely (a POST that only acts on its path). */
+  bodyOptional?: boolean;
+  success: { status: number; description: string; schema?: z.ZodType };
+  /** Other answers the route gives besides the ones every route may give (400, 401, 403, 404, 413, 415, 500). */
+  errors?: readonly number[];
+  limiters?: readonly LimiterName[];
+  handler: (input: HandlerInput<Out<P>, Out<Q>, Out<B>, A>) => unknown;
+}
+
+export type AnyRoute = RouteSpec<z.ZodType | undefined, z.ZodType | undefined, z.ZodType | undefined, Access>;
+
+/**
+ * Keeps the handler's argument types tied to the route's own schemas, then files the route under one
+ * common type so the router, the OpenAPI document and the tests can walk the table.
+ */
+export function defineRoute<
+  P extends z.ZodType | undefined = undefined,
+  Q extends z.ZodType | undefined = undefined,
+  B extends z.ZodType | undefined = undefined,
+  const A extends Access = Access,
+>(spec: RouteSpec<P, Q, B, A>): AnyRoute {
+  return spec as unknown as AnyRoute;
+}
+
+export function allows(route: Pick<AnyRoute, 'access'>, role: UserRole): boolean {
+  return route.access === 'public' || route.access.includes(role);
+}

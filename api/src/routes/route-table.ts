@@ -1,0 +1,18 @@
+import { authRoutes } from './auth.ts';
+import { balanceRoutes } from './balance.ts';
+import { healthRoutes } from './health.ts';
+import type { AnyRoute } from './route-def.ts';
+import { scenarioRoutes } from './scenarios.ts';
+import { sweepRoutes } from './sweeps.ts';
+
+/**
+ * Every route of the API. The router, the OpenAPI document and the authorization matrix are all built
+ * from this list, so a route cannot exist without its roles, its schemas and its tests.
+ */
+export const routeTable: readonly AnyRoute[] = [
+  ...healthRoutes,
+  ...authRoutes,
+  ...scenarioRoutes,
+  ...balanceRoutes,
+  ...sweepRoutes,
+];

@@ -1,0 +1,74 @@
+import { ROLES as ROLE_SETS } from '@crackpoint/api';
+import { defaultScenario } from '@crackpoint/sim-core';
+import { TEST_PASSWORD, type Role, type TestWorkspace } from './context.ts';
+import type { Side, World } from './world.ts';
+
+/** One cell of the authorization matrix. */
+export interface Call {
+  world: World;
+  role: Role;
+  side: Side;
+  /** Whose member sends the request. */
+  caller: TestWorkspace;
+  /** Whose records the request names. */
+  target: TestWorkspace;
+}
+
+export interface Prepared {
+  path: string;
+  query?: Record<string, string | number>;
+  body?: unknown;
+  /** Sent instead of the caller's usual token (a route that spends or changes the token). */
+  token?: string;
+}
+
+/**
+ * A valid request for a route of the table, made for any role and either workspace. The matrix and the
+ * bad-input tests build their requests from these; a route without one fails the coverage test.
+ */
+export interface RouteFixture {
+  prepare(call: Call): Promise<Prepared>;
+  /** For `reference` routes: the status when the body names another workspace's record. */
+  foreignStatus?: number;
+}
+
+/** A record a member of this role can change: their own where the role only changes its own. */
+const authorOf = (role: Role): Role => ((ROLE_SETS.compute as readonly Role[]).includes(role) ? role : 'engineer');
+
+export const routeFixtures: Record<string, RouteFixture> = {
+  getHealth: { prepare: async () => ({ path: '/health' }) },
+  signIn: {
+    prepare: async ({ caller, role }) => ({ path: '/auth/sign-in', body: { email: caller.members[role].email, password: TEST_PASSWORD } }),
+  },
+  getMe: { prepare: async () => ({ path: '/me' }) },
+
+  listScenarios: { prepare: async () => ({ path: '/scenarios', query: { limit: 200 } }) },
+  getScenario: { prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}` }) },
+  createScenario: { prepare: async () => ({ path: '/scenarios', body: { name: 'Matrix scenario' } }) },
+  updateScenario: {
+    prepare: async ({ world, target, role }) => ({
+      path: `/scenarios/${await world.scenario(target, authorOf(role))}`,
+      body: { name: 'Matrix rename', version: 1 },
+    }),
+  },
+
+  computeBalance: { prepare: async () => ({ path: '/balance', body: { scenario: defaultScenario() } }) },
+
+  createSweep: {
+    foreignStatus: 404,
+    prepare: async ({ world, target }) => ({
+      path: '/sweeps',
+      body: { scenarioId: await world.scenario(target, 'engineer'), axes: [{ path: 'exhaust.ratio', values: [1.2, 1.6] }] },
+    }),
+  },
+  listSweeps: { prepare: async () => ({ path: '/sweeps', query: { limit: 200 } }) },
+  getSweep: {
+    prepare: async ({ world, target }) => ({ path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'))}` }),
+  },
+  getSweepSurface: {
+    prepare: async ({ world, target }) => ({
+      path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'))}/surface`,
+      query: { x: 0, y: 1 },
+    }),
+  },
+};

@@ -1,0 +1,84 @@
+import { randomUUID } from 'node:crypto';
+import { defaultScenario } from '@crackpoint/sim-core';
+import type { Knex } from 'knex';
+import { createWorkspace, deleteWorkspace, ROLES, tokensFor, type Role, type TestContext, type TestWorkspace } from './context.ts';
+
+export type Side = 'own' | 'foreign';
+
+/**
+ * Two workspaces with one member of each role, and factories that write records straight to the
+ * database (fast, and independent of the routes under test). Every id made is remembered per workspace,
+ * so a test can check that one workspace's ids never appear in what the other is shown.
+ */
+export interface World {
+  ctx: TestContext;
+  own: TestWorkspace;
+  rival: TestWorkspace;
+  tokens: Record<Side, Record<Role, string>>;
+  ids: Map<string, Set<string>>;
+  workspace(side: Side): TestWorkspace;
+  other(side: Side): Side;
+  track(workspace: TestWorkspace, id: string): string;
+  idsOf(workspace: TestWorkspace): ReadonlySet<string>;
+  scenario(workspace: TestWorkspace, owner: Role, name?: string): Promise<string>;
+  sweep(workspace: TestWorkspace, scenarioId: string): Promise<string>;
+  close(): Promise<void>;
+}
+
+export async function createWorld(ctx: TestContext, label: string): Promise<World> {
+  const own = await createWorkspace(ctx.knex, `${label}-own`);
+  const rival = await createWorkspace(ctx.knex, `${label}-rival`);
+  const tokens = { own: await tokensFor(ctx.app, own), foreign: await tokensFor(ctx.app, rival) };
+  const ids = new Map<string, Set<string>>([
+    [own.id, new Set([own.id, ...ROLES.map((r) => own.members[r].id)])],
+    [rival.id, new Set([rival.id, ...ROLES.map((r) => rival.members[r].id)])],
+  ]);
+  const knex: Knex = ctx.knex;
+
+  const world: World = {
+    ctx,
+    own,
+    rival,
+    tokens,
+    ids,
+    workspace: (side) => (side === 'own' ? own : rival),
+    other: (side) => (side === 'own' ? 'foreign' : 'own'),
+    track(workspace, id) {
+      ids.get(workspace.id)?.add(id);
+      return id;
+    },
+    idsOf: (workspace) => ids.get(workspace.id) ?? new Set(),
+    async scenario(workspace, owner, name = `Scenario ${randomUUID().slice(0, 8)}`) {
+      const [row] = await knex('scenarios')
+        .insert({ workspace_id: workspace.id, owner_id: workspace.members[owner].id, name, data: JSON.stringify(defaultScenario()) })
+        .returning<{ id: string }[]>('id');
+      if (!row) throw new Error('scenario not written');
+      return world.track(workspace, row.id);
+    },
+    async sweep(workspace, scenarioId) {
+      const axes = [
+        { path: 'springs.0.seatForceN', values: [100, 150] },
+        { path: 'exhaust.ratio', values: [1.2, 1.6] },
+      ];
+      const [row] = await knex('sweeps')
+        .insert({
+          workspace_id: workspace.id,
+          scenario_id: scenarioId,
+          created_by: workspace.members.engineer.id,
+          scenario_snapshot: JSON.stringify(defaultScenario()),
+          level: 'static',
+          axes: JSON.stringify(axes),
+          point_count: 4,
+          chunk_size: 4,
+        })
+        .returning<{ id: string }[]>('id');
+      if (!row) throw new Error('sweep not written');
+      return world.track(workspace, row.id);
+    },
+    async close() {
+      await deleteWorkspace(knex, own);
+      await deleteWorkspace(knex, rival);
+    },
+  };
+  return world;
+}
