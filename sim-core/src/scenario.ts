@@ -201,6 +201,10 @@ export const exhaustSchema = z.strictObject({
   backPressureCoefficientPaPerKg2S2: nonNegative(1e8).default(40_000),
   /** Effective turbine flow area (turbine mode). */
   turbineAreaM2: positive(0.05).default(0.0008),
+  /** Exhaust gas c_pe; R_e = c_pe·(γ_e − 1)/γ_e is derived from it (typical of burnt gasoline mixtures; common practice, no source). */
+  gasSpecificHeatJPerKgK: num({ min: 900, max: 1500 }).default(1150),
+  /** Exhaust gas γ_e. */
+  gasHeatCapacityRatio: num({ min: 1.2, max: 1.4 }).default(1.33),
 })
 
 export const engineSchema = z
@@ -215,10 +219,27 @@ export const engineSchema = z
     chargeTemperatureK: num({ min: 230, max: 500 }).default(320),
     intakeVolumeM3: positive(0.1).default(0.004),
     exhaustVolumeM3: positive(0.1).default(0.002),
+    /** Volumetric efficiency over rpm (interpolated, held outside); when given it replaces `volumetricEfficiency` in a pull. */
+    volumetricEfficiencyByRpm: z
+      .array(z.strictObject({ rpm: positive(20_000), volumetricEfficiency: num({ min: 0.2, max: 1.5 }) }))
+      .min(1, { error: 'needs at least one point' })
+      .max(32, { error: 'takes at most 32 points' })
+      .optional(),
+    /**
+     * Intercooler effectiveness ε; when given, the charge temperature of a pull follows the compressor outlet,
+     * T_im = T_out − ε·(T_out − T_amb), instead of the fixed `chargeTemperatureK`.
+     */
+    intercoolerEffectiveness: fraction().optional(),
   })
   .superRefine((e, ctx) => {
     if (e.rpmEnd <= e.rpmStart) {
       ctx.addIssue({ code: 'custom', path: ['rpmEnd'], message: 'must be larger than engine.rpmStart' })
+    }
+    const table = e.volumetricEfficiencyByRpm ?? []
+    for (let i = 1; i < table.length; i++) {
+      if (table[i]!.rpm <= table[i - 1]!.rpm) {
+        ctx.addIssue({ code: 'custom', path: ['volumetricEfficiencyByRpm', i, 'rpm'], message: 'must be larger than the rpm before it' })
+      }
     }
   })
 
@@ -231,10 +252,16 @@ export const turboSchema = z.strictObject({
   flowCoefficient: positive(2).default(0.45),
   compressorEfficiency: num({ min: 0.3, max: 0.9 }).default(0.72),
   turbineEfficiency: num({ min: 0.3, max: 0.9 }).default(0.7),
-  inertiaKgM2: positive(0.01).default(4e-5),
+  /** Rotor inertia; with the other defaults the default pull cracks about 1.4 s in. */
+  inertiaKgM2: positive(0.01).default(8e-5),
   /** Shaft friction P_f = c_f·ω². */
   frictionWPerRad2S2: nonNegative(1).default(2e-6),
   idleSpeedRadS: positive(5000).default(1000),
+  /**
+   * Shaft speed at the start of a pull; left out, the pull starts where the compressor's maximum flow at ambient
+   * is 1.5 times what the engine draws at the start rpm (pull/run-pull.ts, START_FLOW_MARGIN).
+   */
+  initialSpeedRadS: positive(50_000).optional(),
 })
 
 export const solverSchema = z.strictObject({
@@ -242,6 +269,13 @@ export const solverSchema = z.strictObject({
   maxStepS: num({ min: 1e-5, max: 0.1 }).default(0.01),
   sampleIntervalS: num({ min: 1e-3, max: 1 }).default(0.01),
   maxSteps: integer(100, 10_000_000).default(200_000),
+  /** Events (valve landing or leaving a stop, compressor switching) beyond which a pull stops as chattering. */
+  maxEvents: integer(10, 1_000_000).default(5000),
+  /**
+   * The settled-boost window starts this long after the crack and ends with the pull (MODEL.md §5); the default
+   * pull's ringing after the crack (valve against its 1 mm ports) has died out within it.
+   */
+  settlingDelayS: num({ min: 0, max: 30 }).default(1),
 })
 
 export const scenarioSchema = z.strictObject({

@@ -1,4 +1,4 @@
-import { Outcome, Solver } from 'odex'
+import { odexSolver } from './odex-solver.ts'
 
 /**
  * Integrates a system whose right-hand side changes at events (a valve meeting its seat or its stop, a
@@ -14,6 +14,8 @@ export interface HybridSystem<M> {
   readonly size: number
   /** dy/dt in mode `mode`. */
   derivative(t: number, y: readonly number[], mode: M): number[]
+  /** The same into `out`; lets odex, which copies the result at once, run without an allocation per call. */
+  derivativeInto?(t: number, y: readonly number[], mode: M, out: number[]): void
   /** Guard values of the mode; an event fires when one turns from ≤ 0 to > 0. */
   guards(t: number, y: readonly number[], mode: M): readonly number[]
   /** The state and mode just after guard `index` fired at (t, y). */
@@ -56,7 +58,7 @@ export interface HybridStats {
   /** Model evaluations spent on guards and on locating events. */
   guardEvaluations: number
   restarts: number
-  /** Smallest accepted step that did not end at an event or at the end of the run, s. */
+  /** Smallest accepted step, s, leaving out the first of each segment and steps cut short by an event or the end. */
   smallestStepS: number
 }
 
@@ -70,6 +72,9 @@ export interface HybridResult<M> {
 
 /** Interpolant of one step: component c at time t inside the step. */
 type Dense = (c: number, t: number) => number
+
+/** odex's Outcome.Converged, spelled out so that only the solver class is taken from the package (odex-solver.ts). */
+const ODEX_CONVERGED = 0
 
 const BISECTION_ITERATIONS = 48
 const MAX_CHAINED_EVENTS = 4
@@ -114,6 +119,16 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
     stats.evaluations++
     return system.derivative(t, y, mode)
   }
+  const into = system.derivativeInto
+  const scratch = new Array<number>(n).fill(0)
+  const fShared =
+    into === undefined
+      ? f
+      : (t: number, y: number[]): number[] => {
+          stats.evaluations++
+          into(t, y, mode, scratch)
+          return scratch
+        }
   const guardsAt = (t: number, y: readonly number[]): readonly number[] => {
     stats.guardEvaluations++
     return system.guards(t, y, mode)
@@ -182,6 +197,7 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
   /**
    * Handles one accepted step [tOld, t] with its interpolant. Returns false when an event ended the segment.
    */
+  let firstOfSegment = true
   const acceptStep = (tOld: number, t: number, y: readonly number[], dense: Dense): boolean => {
     stats.steps++
     const guards = guardsAt(t, y)
@@ -192,7 +208,8 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
       tLimit = hit.t
       event = { t: hit.t, y: stateAt(dense, hit.t), index: hit.index }
     } else {
-      if (t < o.endS && t - tOld < stats.smallestStepS) stats.smallestStepS = t - tOld
+      // The first step of a segment is odex finding its feet after a restart; a collapse shows in the steps after it.
+      if (!firstOfSegment && t < o.endS && t - tOld < stats.smallestStepS) stats.smallestStepS = t - tOld
       lastStepS = t - tOld
     }
     if (system.watches && o.onWatch) {
@@ -206,6 +223,7 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
     }
     emitSamplesThrough(tLimit, dense)
     prevGuards = guards
+    firstOfSegment = false
     return event === null
   }
 
@@ -214,6 +232,7 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
 
   while (true) {
     event = null
+    firstOfSegment = true
     const budget = o.maxSteps - stats.steps - stats.rejected
     if (budget <= 0) {
       stats.outcome = 'max-steps'
@@ -221,7 +240,7 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
     }
     const segment =
       o.integrator.kind === 'odex'
-        ? runOdexSegment(n, f, t0, y0, o, lastStepS, budget, acceptStep, stats)
+        ? runOdexSegment(n, fShared, t0, y0, o, lastStepS, budget, acceptStep, stats)
         : runRk4Segment(n, f, t0, y0, o.endS, o.integrator.stepS, budget, acceptStep)
     const ev = event as { t: number; y: number[]; index: number } | null
     if (ev === null) {
@@ -290,13 +309,19 @@ function runOdexSegment<M>(
   acceptStep: AcceptStep,
   stats: HybridStats,
 ): SegmentEnd {
-  const solver = new Solver(n)
+  const solver = odexSolver(n)
   solver.relativeTolerance = o.relativeTolerance
   solver.absoluteTolerance = [...o.absoluteTolerance]
   solver.maxStepSize = o.maxStepS
   solver.initialStepSize = Math.min(initialStepS, o.maxStepS)
   solver.maxSteps = budget
   solver.denseOutput = true
+  // odex's stability check compares the change of each derivative over the first substeps with the state's own
+  // scale. Just after a restart the valve's speed is zero, its scale is its absolute tolerance, and its
+  // acceleration grows at once, so the check halves the step down to nanoseconds. The error estimate still
+  // rejects unstable steps, and the step never exceeds maxStepS, so the check is switched off.
+  const tunable = solver as typeof solver & { stabilityCheckCount: number }
+  tunable.stabilityCheckCount = 0
   let tLast = t0
   let yLast = y0
   let stopped = false
@@ -312,7 +337,7 @@ function runOdexSegment<M>(
   })
   stats.rejected += result.nReject
   if (stopped) return { reached: false, t: tLast, y: yLast }
-  if (result.outcome === Outcome.Converged) return { reached: true, t: o.endS, y: result.y }
+  if (result.outcome === ODEX_CONVERGED) return { reached: true, t: o.endS, y: result.y }
   return { reached: false, t: tLast, y: yLast }
 }
 

@@ -1,0 +1,196 @@
+import { boostAtLift, computeBalance } from '../balance.ts'
+import { springTotals, wastegateAreas } from '../geometry.ts'
+import type { Scenario } from '../scenario.ts'
+import type { PullFlags, PullMetrics, PullSeries } from './pull-result.ts'
+
+/** What a pull records beyond its series, for the metrics and flags. */
+export interface PullRecord {
+  series: PullSeries
+  /** Per sample: Π0 − Π of the compressor, the pressure downstream of the valve, the closed-loop target. */
+  zeroFlowMargin: number[]
+  downstreamPa: number[]
+  targetBoostPa: number[]
+  /** Per sample, the valve on its full-lift stop. */
+  atFullLift: boolean[]
+  crack: { timeS: number; boostPa: number } | null
+  /** Gas drawn from a CO₂ bottle or a tank; null when boost is the source. */
+  gasUsedKg: number | null
+  compressorOnS: number | null
+  durationS: number
+}
+
+/** Boost scatter (RMS about a straight line) above which a pull counts as not settled: 0.05 psi (common practice, no source). */
+export const SETTLED_BOOST_SCATTER_PA = 344.7
+/** Lift scatter, as a share of the maximum lift, above which a pull counts as not settled. */
+export const SETTLED_LIFT_SCATTER = 0.02
+/** Boost short of its target by more than this (0.5 psi) when drive pressure alone opens the valve is flagged. */
+export const HELD_OPEN_MARGIN_PA = 3447
+
+const mean = (v: readonly number[]) => v.reduce((a, b) => a + b, 0) / v.length
+
+/** RMS residual of `v` about its least-squares line over `t`. */
+function scatterAboutLine(t: readonly number[], v: readonly number[]): number {
+  const n = t.length
+  const tm = mean(t)
+  const vm = mean(v)
+  let stt = 0
+  let stv = 0
+  for (let i = 0; i < n; i++) {
+    stt += (t[i]! - tm) ** 2
+    stv += (t[i]! - tm) * (v[i]! - vm)
+  }
+  const slope = stt > 0 ? stv / stt : 0
+  let ss = 0
+  for (let i = 0; i < n; i++) ss += (v[i]! - vm - slope * (t[i]! - tm)) ** 2
+  return Math.sqrt(ss / n)
+}
+
+/** First time the series reaches `level`, interpolated between samples; null when it never does. */
+function firstReach(t: readonly number[], v: readonly number[], level: number): number | null {
+  for (let i = 0; i < v.length; i++) {
+    if (v[i]! >= level) {
+      if (i === 0) return t[0]!
+      const a = v[i - 1]!
+      return t[i - 1]! + ((t[i]! - t[i - 1]!) * (level - a)) / (v[i]! - a)
+    }
+  }
+  return null
+}
+
+export interface SupplyFigures {
+  pullsPerSupply: number | null
+  keepsUp: boolean
+  /** Gauge pressure the regulator needs at its inlet to hold the setpoint (setpoint + droop). */
+  holdPa: number | null
+}
+
+export function pullMetrics(
+  s: Scenario,
+  r: PullRecord,
+  supply: SupplyFigures,
+): { metrics: PullMetrics; flags: PullFlags } {
+  const { series } = r
+  const t = series.timeS
+  const boost = series.boostPa
+  const lift = series.liftM
+  const xMax = s.wastegate.maxLiftM
+  const n = t.length
+
+  // Settling window: from settlingDelayS after the crack to the end of the pull.
+  let settledBoostPa: number | null = null
+  let settledLiftM: number | null = null
+  let notSettled = true
+  let driveRatioSeen: number | null = null
+  let windowDrive = 0
+  let windowBoost = 0
+  if (r.crack) {
+    const start = r.crack.timeS + s.solver.settlingDelayS
+    const idx: number[] = []
+    for (let i = 0; i < n; i++) if (t[i]! >= start - 1e-12) idx.push(i)
+    // Fewer than five samples, or a window cut short by an early stop, is no window to judge by.
+    if (idx.length >= 5 && Math.abs(t[n - 1]! - r.durationS) <= 1e-9 * Math.max(1, r.durationS)) {
+      const tw = idx.map((i) => t[i]!)
+      const bw = idx.map((i) => boost[i]!)
+      const xw = idx.map((i) => lift[i]!)
+      settledBoostPa = mean(bw)
+      settledLiftM = mean(xw)
+      windowBoost = settledBoostPa
+      windowDrive = mean(idx.map((i) => series.drivePa[i]!))
+      notSettled = scatterAboutLine(tw, bw) > SETTLED_BOOST_SCATTER_PA || scatterAboutLine(tw, xw) > SETTLED_LIFT_SCATTER * xMax
+    }
+  }
+
+  let peakBoostPa = -Infinity
+  let peakAt = 0
+  for (let i = 0; i < n; i++) {
+    if (boost[i]! > peakBoostPa) {
+      peakBoostPa = boost[i]!
+      peakAt = i
+    }
+  }
+  const peakDrivePa = Math.max(...series.drivePa)
+  if (settledBoostPa !== null && windowBoost > 0) driveRatioSeen = windowDrive / windowBoost
+  else if (boost[peakAt]! > 0) driveRatioSeen = series.drivePa[peakAt]! / boost[peakAt]!
+
+  // The static balance at the settled lift; in turbine mode at the ratio the pull itself showed.
+  let staticBoostAtSettledLiftPa: number | null = null
+  if (settledLiftM !== null) {
+    const ratio =
+      s.exhaust.mode === 'ratio' || windowBoost <= 0
+        ? s.exhaust.ratio
+        : (windowDrive - s.exhaust.driveAtZeroBoostPa) / windowBoost
+    const b = boostAtLift(s, settledLiftM, ratio)
+    staticBoostAtSettledLiftPa = b.status === 'opens' ? b.boostPa : null
+  }
+
+  // Creep: the largest boost rise over a stretch with the valve on its full-lift stop.
+  let creepPa: number | null = null
+  for (let i = 0; i < n; i++) {
+    if (!r.atFullLift[i]) continue
+    let j = i
+    let top = boost[i]!
+    while (j + 1 < n && r.atFullLift[j + 1]) top = Math.max(top, boost[++j]!)
+    creepPa = Math.max(creepPa ?? 0, top - boost[i]!)
+    i = j
+  }
+
+  const supplyKind = s.supply.kind
+  let tankStartPa: number | null = null
+  let tankEndPa: number | null = null
+  let tankMinPa: number | null = null
+  if (supplyKind === 'compressor') {
+    tankStartPa = series.supplyPa[0]!
+    tankEndPa = series.supplyPa[n - 1]!
+    tankMinPa = Math.min(...series.supplyPa)
+  }
+
+  // Flags.
+  const areas = wastegateAreas(s.wastegate)
+  const { seatForceN, rateNPerM } = springTotals(s.springs, areas)
+  const staticCrack = computeBalance(s).crack
+  const staticCrackPa = staticCrack.status === 'opens' ? staticCrack.boostPa : null
+  let heldOpenByDrive = false
+  let supplyBelowSetpoint = false
+  let pastZeroFlowLine = false
+  const setpoint = s.supply.kind === 'boost' ? null : s.supply.regulatorSetpointPa
+  for (let i = 0; i < n; i++) {
+    if (r.zeroFlowMargin[i]! <= 0 && boost[i]! > 0) pastZeroFlowLine = true
+    if (setpoint !== null && series.regulatedPa[i]! < setpoint - 1e-6 * Math.max(1, setpoint)) supplyBelowSetpoint = true
+    const target = s.control.kind === 'closed-loop' ? r.targetBoostPa[i]! : staticCrackPa
+    if (target !== null && lift[i]! > s.wastegate.crackThresholdM && boost[i]! < target - HELD_OPEN_MARGIN_PA) {
+      const driveForce = series.drivePa[i]! * areas.valveM2 - r.downstreamPa[i]! * areas.valveBackM2
+      if (driveForce >= seatForceN + rateNPerM * lift[i]!) heldOpenByDrive = true
+    }
+  }
+
+  const metrics: PullMetrics = {
+    crackBoostPa: r.crack?.boostPa ?? null,
+    crackTimeS: r.crack?.timeS ?? null,
+    peakBoostPa,
+    settledBoostPa,
+    settledLiftM,
+    staticBoostAtSettledLiftPa,
+    overshootPa: settledBoostPa === null ? null : Math.max(0, peakBoostPa - settledBoostPa),
+    timeTo90PercentS: settledBoostPa === null || settledBoostPa <= 0 ? null : firstReach(t, boost, 0.9 * settledBoostPa),
+    creepPa,
+    peakDrivePa,
+    driveRatioSeen,
+    maxLiftFraction: Math.max(...lift) / xMax,
+    gasUsedPerPullKg: r.gasUsedKg,
+    pullsPerSupply: supply.pullsPerSupply,
+    compressorDuty: r.compressorOnS === null ? null : r.compressorOnS / r.durationS,
+    tankStartPa,
+    tankEndPa,
+    tankMinPa,
+  }
+  const flags: PullFlags = {
+    overBoostLimit: s.boostLimitPa !== undefined && peakBoostPa > s.boostLimitPa,
+    heldOpenByDrive,
+    supplyBelowSetpoint,
+    pastZeroFlowLine,
+    neverOpened: r.crack === null,
+    notSettled,
+    supplyKeepsUp: supply.keepsUp,
+  }
+  return { metrics, flags }
+}
