@@ -5,3 +5,4 @@ export { Scenario } from './scenario.ts';
 export { Sweep, SWEEP_LEVELS, SWEEP_STATES, type SweepLevel, type SweepState, type ResolvedAxis } from './sweep.ts';
 export { SweepChunk, CHUNK_STATES, type ChunkState } from './sweep-chunk.ts';
 export { SweepPoint, POINT_STATUSES, type PointStatus } from './sweep-point.ts';
+export { RevokedToken } from './revoked-token.ts';

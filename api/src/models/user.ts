@@ -17,6 +17,8 @@ export class User extends BaseModel {
   displayName!: string;
   role!: UserRole;
   unitSystem!: UnitSystem;
+  /** Raised to end every session of the member; tokens carry the version they were made under. */
+  tokenVersion!: number;
 
   workspace?: Workspace;
 

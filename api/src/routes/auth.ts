@@ -1,8 +1,29 @@
-import { meResponseSchema, signInBodySchema, signInResponseSchema } from '../schemas/auth.ts';
-import { getMe, signIn } from '../services/auth.ts';
+import {
+  changePasswordBodySchema,
+  meResponseSchema,
+  registerBodySchema,
+  signInBodySchema,
+  signInResponseSchema,
+  signOutBodySchema,
+} from '../schemas/auth.ts';
+import { changePassword, getMe, register, signIn, signOut } from '../services/auth.ts';
 import { defineRoute, ROLES } from './route-def.ts';
 
 export const authRoutes = [
+  defineRoute({
+    id: 'register',
+    method: 'post',
+    path: '/auth/register',
+    summary: 'Create a workspace; its first member is its admin, signed in at once',
+    tag: 'Account',
+    access: 'public',
+    scope: 'public',
+    body: registerBodySchema,
+    success: { status: 201, description: 'Registered and signed in', schema: signInResponseSchema },
+    errors: [409, 429],
+    limiters: ['register'],
+    handler: ({ deps, body }) => register(deps.knex, deps.config, body),
+  }),
   defineRoute({
     id: 'signIn',
     method: 'post',
@@ -16,6 +37,35 @@ export const authRoutes = [
     errors: [429],
     limiters: ['signInPerAddress', 'signInPerAccount'],
     handler: ({ deps, body }) => signIn(deps.knex, deps.config, body),
+  }),
+  defineRoute({
+    id: 'signOut',
+    method: 'post',
+    path: '/auth/sign-out',
+    summary: 'End this session, or every session of the member with everywhere: true',
+    tag: 'Account',
+    access: ROLES.everyone,
+    scope: 'self',
+    body: signOutBodySchema,
+    bodyOptional: true,
+    success: { status: 204, description: 'Signed out; the token is refused from now on' },
+    handler: async ({ deps, auth, body }) => {
+      await signOut(deps.knex, auth, body ?? { everywhere: false });
+    },
+  }),
+  defineRoute({
+    id: 'changePassword',
+    method: 'post',
+    path: '/auth/change-password',
+    summary: "Change the member's password; every other session ends",
+    tag: 'Account',
+    access: ROLES.everyone,
+    scope: 'self',
+    body: changePasswordBodySchema,
+    success: { status: 200, description: 'Changed; a fresh token for this session', schema: signInResponseSchema },
+    errors: [422, 429],
+    limiters: ['changePassword'],
+    handler: ({ deps, auth, body }) => changePassword(deps.knex, deps.config, auth, body),
   }),
   defineRoute({
     id: 'getMe',

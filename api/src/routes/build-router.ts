@@ -9,6 +9,7 @@ const JSON_TYPES = ['application/json', 'application/*+json'];
 
 /** A body that is there but is not JSON; an empty POST is left for the route's schema to judge. */
 function hasNonJsonBody(req: Request): boolean {
+  if (req.get('content-length') === '0') return false;
   return req.is(JSON_TYPES) === false;
 }
 

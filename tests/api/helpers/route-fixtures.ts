@@ -40,6 +40,22 @@ export const routeFixtures: Record<string, RouteFixture> = {
   signIn: {
     prepare: async ({ caller, role }) => ({ path: '/auth/sign-in', body: { email: caller.members[role].email, password: TEST_PASSWORD } }),
   },
+  register: {
+    prepare: async ({ world }) => ({
+      path: '/auth/register',
+      body: { workspaceName: 'Matrix Motorsport', displayName: 'New admin', email: world.registrationEmail(), password: 'a long enough secret' },
+    }),
+  },
+  signOut: {
+    prepare: async ({ world, caller, role }) => ({ path: '/auth/sign-out', body: {}, token: (await world.member(caller, role)).token }),
+  },
+  changePassword: {
+    prepare: async ({ world, caller, role }) => ({
+      path: '/auth/change-password',
+      body: { currentPassword: TEST_PASSWORD, newPassword: 'another long secret' },
+      token: (await world.member(caller, role)).token,
+    }),
+  },
   getMe: { prepare: async () => ({ path: '/me' }) },
 
   listScenarios: { prepare: async () => ({ path: '/scenarios', query: { limit: 200 } }) },

@@ -1,7 +1,18 @@
 import { randomUUID } from 'node:crypto';
 import { defaultScenario } from '@crackpoint/sim-core';
 import type { Knex } from 'knex';
-import { createWorkspace, deleteWorkspace, ROLES, tokensFor, type Role, type TestContext, type TestWorkspace } from './context.ts';
+import bcrypt from 'bcryptjs';
+import {
+  createWorkspace,
+  deleteWorkspace,
+  ROLES,
+  signIn,
+  TEST_PASSWORD,
+  tokensFor,
+  type Role,
+  type TestContext,
+  type TestWorkspace,
+} from './context.ts';
 
 export type Side = 'own' | 'foreign';
 
@@ -22,6 +33,10 @@ export interface World {
   idsOf(workspace: TestWorkspace): ReadonlySet<string>;
   scenario(workspace: TestWorkspace, owner: Role, name?: string): Promise<string>;
   sweep(workspace: TestWorkspace, scenarioId: string): Promise<string>;
+  /** A new member with a session of their own, for routes that spend or change the session. */
+  member(workspace: TestWorkspace, role: Role): Promise<{ id: string; email: string; token: string }>;
+  /** An e-mail for a workspace a test registers; the workspace goes when the world closes. */
+  registrationEmail(): string;
   close(): Promise<void>;
 }
 
@@ -34,6 +49,7 @@ export async function createWorld(ctx: TestContext, label: string): Promise<Worl
     [rival.id, new Set([rival.id, ...ROLES.map((r) => rival.members[r].id)])],
   ]);
   const knex: Knex = ctx.knex;
+  const registered: string[] = [];
 
   const world: World = {
     ctx,
@@ -75,7 +91,23 @@ export async function createWorld(ctx: TestContext, label: string): Promise<Worl
       if (!row) throw new Error('sweep not written');
       return world.track(workspace, row.id);
     },
+    async member(workspace, role) {
+      const email = `${role}.${randomUUID().slice(0, 8)}@test.example`;
+      const [row] = await knex('users')
+        .insert({ workspace_id: workspace.id, email, password_hash: await bcrypt.hash(TEST_PASSWORD, 4), display_name: `Extra ${role}`, role })
+        .returning<{ id: string }[]>('id');
+      if (!row) throw new Error('member not written');
+      world.track(workspace, row.id);
+      return { id: row.id, email, token: await signIn(ctx.app, email) };
+    },
+    registrationEmail() {
+      const email = `registered.${randomUUID().slice(0, 8)}@test.example`;
+      registered.push(email);
+      return email;
+    },
     async close() {
+      const workspaces = await knex('users').whereIn('email', registered).pluck<string[]>('workspace_id');
+      await knex('workspaces').whereIn('id', workspaces).delete();
       await deleteWorkspace(knex, own);
       await deleteWorkspace(knex, rival);
     },
