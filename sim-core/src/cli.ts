@@ -5,13 +5,13 @@ import type { FieldIssue } from './scenario.ts'
 import { parseCliArgs, USAGE, type CliOptions } from './cli/args.ts'
 import { renderBalance } from './cli/balance-report.ts'
 import { readJsonFile, readScenario, readSweep, type SweepFile } from './cli/input.ts'
-import { loadRunPull, PULL_NOT_AVAILABLE } from './cli/pull-loader.ts'
 import { renderPull } from './cli/pull-report.ts'
-import { renderStaticSweep, runStaticSweep } from './cli/sweep-report.ts'
+import { renderSweep, runSweep } from './cli/sweep-report.ts'
+import { runPull } from './pull/index.ts'
 
 /**
  * `npm run sim -- <balance|pull|sweep> <file> [--json] [--units us|metric]`: the model from the command line.
- * Exit codes: 0 done, 1 bad input (file, schema, or a level this build cannot run), 2 wrong usage.
+ * Exit codes: 0 done (a pull that stopped early says so in its report), 1 bad input (file or schema), 2 wrong usage.
  */
 
 export interface CliIo {
@@ -55,11 +55,6 @@ async function pull(options: CliOptions, path: string, io: CliIo): Promise<numbe
   if (!read.ok) return reportIssues(io, options.file, 'scenario file', read.issues)
   const scenario = readScenario(read.value)
   if (!scenario.ok) return reportIssues(io, options.file, 'scenario', scenario.issues)
-  const runPull = await loadRunPull()
-  if (runPull === null) {
-    io.stderr(`${PULL_NOT_AVAILABLE}\n`)
-    return 1
-  }
   const result = runPull(scenario.value)
   io.stdout(options.json ? `${json(result)}\n` : `${renderPull(basename(path), scenario.value, result, options.units)}\n`)
   return 0
@@ -71,27 +66,17 @@ async function sweep(options: CliOptions, path: string, io: CliIo): Promise<numb
   const parsed = readSweep(read.value)
   if (!parsed.ok) return reportIssues(io, options.file, 'sweep', parsed.issues)
   const s: SweepFile = parsed.value
-  if (s.level !== 'static') {
-    io.stderr(`level "${s.level}": ${PULL_NOT_AVAILABLE}\n`)
-    return 1
-  }
-  if (s.pointCount > CLI_MAX_STATIC_POINTS) {
+  const limit = s.level === 'static' ? CLI_MAX_STATIC_POINTS : CLI_MAX_DYNAMIC_POINTS
+  if (s.pointCount > limit) {
     return reportIssues(io, options.file, 'sweep for the command line', [
-      { path: 'axes', message: `give ${s.pointCount} points; the command line runs at most ${CLI_MAX_STATIC_POINTS}` },
+      { path: 'axes', message: `give ${s.pointCount} points; the command line runs at most ${limit} at the ${s.level} level` },
     ])
   }
-  const rows = runStaticSweep(s)
+  const rows = runSweep(s)
   if (options.json) {
-    io.stdout(
-      `${json({
-        level: s.level,
-        axes: s.axes,
-        pointCount: s.pointCount,
-        points: rows.map((r) => ({ index: r.index, values: r.values, ...r.static })),
-      })}\n`,
-    )
+    io.stdout(`${json({ level: s.level, axes: s.axes, pointCount: s.pointCount, points: rows })}\n`)
   } else {
-    io.stdout(`${renderStaticSweep(basename(path), s, rows, options.units)}\n`)
+    io.stdout(`${renderSweep(basename(path), s, rows, options.units)}\n`)
   }
   return 0
 }

@@ -6,6 +6,7 @@ import { fileURLToPath } from 'node:url'
 import { describe, expect, it } from 'vitest'
 import { main, type CliIo } from '../src/cli.ts'
 import { computeBalance, formatQuantity, parseScenario, type Scenario } from '../src/index.ts'
+import { runPull } from '../src/pull/index.ts'
 
 const here = dirname(fileURLToPath(import.meta.url))
 const repoRoot = resolve(here, '../..')
@@ -114,6 +115,48 @@ describe('sim balance', () => {
   })
 })
 
+describe('sim pull', () => {
+  it('prints the metrics, flags, a coarse series and the solver statistics of one pull', async () => {
+    const r = await run('pull', fourCylinder)
+    expect(r.code).toBe(0)
+    const pull = runPull(await exampleScenario())
+    const settled = pull.metrics.settledBoostPa
+    if (settled === null) throw new Error('the example should settle')
+    expect(r.stdout).toMatch(new RegExp(`settled boost\\s+${formatQuantity('pressure', 'us', settled).replace('.', '\\.')}`))
+    expect(r.stdout).toMatch(/static balance at the settled lift\s+[\d.]+ psi/)
+    expect(r.stdout).toMatch(/Flags\n {2}(none|• )/)
+    expect(r.stdout).toMatch(/^ 0\.00 +2500 /m)
+    expect(r.stdout).toMatch(/^ 4\.00 +7000 /m)
+    expect(r.stdout).toMatch(/outcome\s+converged/)
+    expect(r.stdout).toMatch(/Note: Ratio mode/)
+  })
+
+  it('prints the whole pull as JSON with --json', async () => {
+    const r = await run('pull', fourCylinder, '--json')
+    expect(r.code).toBe(0)
+    const out = JSON.parse(r.stdout) as { series: { timeS: number[] }; metrics: { crackBoostPa: number }; stats: { outcome: string } }
+    const pull = runPull(await exampleScenario())
+    expect(out.stats.outcome).toBe('converged')
+    expect(out.series.timeS).toHaveLength(pull.series.timeS.length)
+    expect(out.metrics.crackBoostPa).toBe(pull.metrics.crackBoostPa)
+  })
+
+  it('shows the gas a CO₂-fed pull spends and the pulls per bottle', async () => {
+    const r = await run('pull', join(examples, 'v8-twin-co2-top-port.json'), '--units', 'metric')
+    expect(r.code).toBe(0)
+    expect(r.stdout).toMatch(/gas used this pull\s+[\d.]+ g/)
+    expect(r.stdout).toMatch(/pulls per bottle\s+(\d+|—)/)
+  })
+
+  it('exits 1 naming the bad field before running anything', async () => {
+    const s = await exampleScenario()
+    const r = await run('pull', writeJson('bad-pull.json', { ...s, engine: { ...s.engine, rpmEnd: 1000 } }))
+    expect(r.code).toBe(1)
+    expect(r.stdout).toBe('')
+    expect(r.stderr).toContain('engine.rpmEnd: must be larger than engine.rpmStart')
+  })
+})
+
 describe('sim sweep', () => {
   it('prints every point of a static sweep, first axis slowest, with the axis values in the chosen units', async () => {
     const r = await run('sweep', sweepFile, '--units', 'metric')
@@ -129,13 +172,13 @@ describe('sim sweep', () => {
   it('prints the points as JSON with --json, matching the static evaluation', async () => {
     const r = await run('sweep', sweepFile, '--json')
     expect(r.code).toBe(0)
-    const out = JSON.parse(r.stdout) as { pointCount: number; points: { index: number; values: number[]; crackBoostPa: number }[] }
+    const out = JSON.parse(r.stdout) as { pointCount: number; points: { index: number; values: number[]; static: { crackBoostPa: number } }[] }
     expect(out.pointCount).toBe(35)
     expect(out.points).toHaveLength(35)
     expect(out.points[7]?.values).toEqual([200, 1.5])
     const s = await exampleScenario()
     const crack = computeBalance({ ...s, springs: [{ from: 'seat', seatForceN: 200, rateNPerM: 5000 }], exhaust: { ...s.exhaust, ratio: 1.5 } }).crack
-    expect(crack.status === 'opens' ? crack.boostPa : null).toBeCloseTo(out.points[7]?.crackBoostPa ?? NaN, 9)
+    expect(crack.status === 'opens' ? crack.boostPa : null).toBeCloseTo(out.points[7]?.static.crackBoostPa ?? NaN, 9)
   })
 
   it('exits 1 naming the scenario field, the axis and unknown keys of a bad sweep file', async () => {
@@ -151,6 +194,36 @@ describe('sim sweep', () => {
     const badLevel = await run('sweep', writeJson('s4.json', { scenario: s, axes: [{ path: 'exhaust.ratio', values: [1] }], level: 'fast' }))
     expect(badLevel.code).toBe(1)
     expect(badLevel.stderr).toMatch(/level: /)
+  })
+})
+
+describe('sim sweep at the dynamic level', () => {
+  it('puts a whole pull beside the static balance of each point for level "both"', async () => {
+    const s = await exampleScenario()
+    const file = writeJson('both.json', { scenario: s, level: 'both', axes: [{ path: 'exhaust.ratio', values: [1.3, 1.7] }] })
+    const r = await run('sweep', file)
+    expect(r.code, r.stderr).toBe(0)
+    expect(r.stdout).toContain('Sweep (static and dynamic levels)')
+    expect(r.stdout).toMatch(/pull crack\s+settled\s+peak\s+flags/)
+    const json = await run('sweep', file, '--json')
+    const out = JSON.parse(json.stdout) as { points: { static?: unknown; dynamic?: { outcome: string; settledBoostPa: number } }[] }
+    expect(out.points).toHaveLength(2)
+    expect(out.points.every((p) => p.static !== undefined && p.dynamic?.outcome === 'converged')).toBe(true)
+  })
+
+  it('runs only pulls for level "dynamic", and refuses more points than the command line runs', async () => {
+    const s = await exampleScenario()
+    const one = await run('sweep', writeJson('dyn.json', { scenario: s, level: 'dynamic', axes: [{ path: 'exhaust.ratio', values: [1.5] }] }), '--json')
+    const out = JSON.parse(one.stdout) as { points: { static?: unknown; dynamic?: unknown }[] }
+    expect(out.points[0]?.static).toBeUndefined()
+    expect(out.points[0]?.dynamic).toBeDefined()
+    const big = await run('sweep', writeJson('big.json', {
+      scenario: s,
+      level: 'dynamic',
+      axes: [{ path: 'exhaust.ratio', range: { from: 1, to: 2, count: 100 } }, { path: 'springs.0.seatForceN', range: { from: 200, to: 400, count: 11 } }],
+    }))
+    expect(big.code).toBe(1)
+    expect(big.stderr).toMatch(/axes: give 1100 points; the command line runs at most 1000 at the dynamic level/)
   })
 })
 

@@ -1,65 +1,104 @@
+import type { PullFlags, PullResult } from '../pull/index.ts'
 import type { Scenario } from '../scenario.ts'
-import type { UnitSystem } from '../units.ts'
+import { formatQuantity, type Quantity, type UnitSystem } from '../units.ts'
 import { CAUTION } from './describe.ts'
-import type { PullOutput } from './pull-loader.ts'
-import { displayUnitOfField, formatFieldValue } from './quantities.ts'
-import { renderPairs } from './table.ts'
+import { renderPairs, renderTable } from './table.ts'
 
-/** "settledBoostPa" → "settled boost". */
-function label(key: string): string {
-  const bare = key.replace(/(PaPerKg2S2|NPerM|M3PerS|KgPerS|RadS|Pa|Kg|M2|M3|N|M|S|K)$/, '')
-  return bare.replace(/([a-z0-9])([A-Z])/g, '$1 $2').toLowerCase()
+/** What each raised flag means, in the words of MODEL.md §5. */
+export const FLAG_TEXT: Record<keyof PullFlags, string> = {
+  overBoostLimit: 'peak boost is over the boost limit',
+  heldOpenByDrive: 'drive pressure alone held the valve open before boost reached its target',
+  supplyBelowSetpoint: 'the supply fell below the regulator setpoint',
+  pastZeroFlowLine: "boost reached the compressor's zero-flow line (surge risk)",
+  neverOpened: 'boost never opened the valve',
+  notSettled: 'not settled: boost or lift still scatter in the settling window',
+  supplyKeepsUp: 'the compressor keeps up with the draw for good',
 }
 
-function formatValue(key: string, value: unknown, system: UnitSystem): string {
-  if (typeof value === 'number') {
-    if (!Number.isFinite(value)) return '—'
-    const symbol = displayUnitOfField(key, system).symbol
-    return symbol ? `${formatFieldValue(key, system, value)} ${symbol}` : formatFieldValue(key, system, value)
+export function raisedFlags(flags: PullFlags): string[] {
+  return (Object.keys(FLAG_TEXT) as (keyof PullFlags)[]).filter((k) => flags[k]).map((k) => FLAG_TEXT[k])
+}
+
+/** Rows of the series table: about every 0.25 s, and always the last sample. */
+const SERIES_ROWS_PER_S = 4
+
+/** One pull as the readable report of `sim pull`: metrics, raised flags, a coarse series, solver statistics. */
+export function renderPull(title: string, s: Scenario, r: PullResult, system: UnitSystem): string {
+  const q = (quantity: Quantity, v: number | null) => (v === null || !Number.isFinite(v) ? '—' : formatQuantity(quantity, system, v))
+  const p = (v: number | null) => q('pressure', v)
+  const m = r.metrics
+  const metrics: [string, string][] = [
+    ['crack boost', m.crackBoostPa === null ? 'never cracked' : `${p(m.crackBoostPa)} at ${q('time', m.crackTimeS)}`],
+    ['peak boost', p(m.peakBoostPa)],
+    ['settled boost', p(m.settledBoostPa)],
+    ['static balance at the settled lift', p(m.staticBoostAtSettledLiftPa)],
+    ['settled lift', q('smallLength', m.settledLiftM)],
+    ['overshoot', p(m.overshootPa)],
+    ['time to 90 % of settled boost', q('time', m.timeTo90PercentS)],
+    ['creep (valve fully open)', m.creepPa === null ? '— (never at full lift)' : p(m.creepPa)],
+    ['peak drive pressure', p(m.peakDrivePa)],
+    ['drive-to-boost ratio seen', m.driveRatioSeen === null ? '—' : m.driveRatioSeen.toFixed(2)],
+    ['largest lift', `${Math.round(m.maxLiftFraction * 100)} % of full lift`],
+  ]
+  if (s.supply.kind !== 'boost') {
+    // Sealed chambers spend little gas: show hundredths of a gram below 10 g rather than "0 g".
+    const gas = m.gasUsedPerPullKg
+    metrics.push(['gas used this pull', gas === null ? '—' : formatQuantity('gasMass', system, gas, gas < 0.01 ? 2 : 0)])
+    const per = s.supply.kind === 'co2' ? 'pulls per bottle' : 'back-to-back pulls holding the setpoint'
+    metrics.push([per, m.pullsPerSupply === null ? (r.flags.supplyKeepsUp ? 'unlimited' : '—') : String(Math.floor(m.pullsPerSupply))])
   }
-  if (value === null || value === undefined) return '—'
-  if (typeof value === 'boolean') return value ? 'yes' : 'no'
-  if (typeof value === 'string') return value
-  return JSON.stringify(value)
-}
-
-function pairsOf(record: Record<string, unknown>, system: UnitSystem): [string, string][] {
-  return Object.entries(record)
-    .filter(([, v]) => v === null || ['number', 'string', 'boolean'].includes(typeof v))
-    .map(([k, v]) => [label(k), formatValue(k, v, system)])
-}
-
-/** The flags that are raised, whatever their shape: a list of names, or an object of booleans or notes. */
-export function raisedFlags(flags: unknown): string[] {
-  if (Array.isArray(flags)) return flags.map((f) => (typeof f === 'string' ? f : JSON.stringify(f)))
-  if (flags && typeof flags === 'object') {
-    return Object.entries(flags as Record<string, unknown>)
-      .filter(([, v]) => v !== false && v !== null && v !== undefined)
-      .map(([k, v]) => (typeof v === 'string' ? `${label(k)}: ${v}` : label(k)))
+  if (s.supply.kind === 'compressor') {
+    metrics.push(['compressor duty', m.compressorDuty === null ? '—' : `${Math.round(m.compressorDuty * 100)} %`])
+    metrics.push(['tank start / end / lowest', [m.tankStartPa, m.tankEndPa, m.tankMinPa].map(p).join(' / ')])
   }
-  return []
-}
-
-/** One pull as the readable report of `sim pull`: metrics in the user's units, raised flags, solver statistics. */
-export function renderPull(title: string, s: Scenario, result: PullOutput, system: UnitSystem): string {
-  const flags = raisedFlags(result.flags)
+  const flags = raisedFlags(r.flags)
+  const st = r.stats
+  const solver: [string, string][] = [
+    ['outcome', st.outcome === 'converged' ? 'converged' : `${st.outcome}: stopped at ${q('time', st.reachedS)}`],
+    ['integrator', st.integrator],
+    ['steps (rejected)', `${st.steps} (${st.rejected})`],
+    ['evaluations (+ auxiliary)', `${st.evaluations} (+ ${st.auxiliaryEvaluations})`],
+    ['restarts at events', String(st.restarts)],
+    ['smallest step', `${st.smallestStepS.toExponential(2)} s`],
+    ['chambers top / bottom', `${st.chambers.top} / ${st.chambers.bottom}`],
+  ]
+  const series = r.series
+  const every = Math.max(1, Math.round(1 / (SERIES_ROWS_PER_S * s.solver.sampleIntervalS)))
+  const picks = series.timeS.map((_, i) => i).filter((i) => i % every === 0 || i === series.timeS.length - 1)
+  const num = (quantity: Quantity, v: number | undefined) => (v === undefined ? '—' : formatQuantity(quantity, system, v).split(' ')[0] ?? '')
+  const unit = (quantity: Quantity) => formatQuantity(quantity, system, 0).split(' ')[1] ?? ''
+  const seriesTable = renderTable(
+    ['t (s)', 'rpm', `boost (${unit('pressure')})`, `drive (${unit('pressure')})`, `lift (${unit('smallLength')})`,
+      'shaft (rpm)', `top (${unit('pressure')})`, `bottom (${unit('pressure')})`, `supply (${unit('pressure')})`],
+    picks.map((i) => [
+      (series.timeS[i] ?? 0).toFixed(2),
+      String(Math.round(series.rpm[i] ?? 0)),
+      num('pressure', series.boostPa[i]),
+      num('pressure', series.drivePa[i]),
+      num('smallLength', series.liftM[i]),
+      num('speed', series.shaftSpeedRadS[i]),
+      num('pressure', series.topPa[i]),
+      num('pressure', series.bottomPa[i]),
+      num('pressure', series.supplyPa[i]),
+    ]),
+  )
   return [
     `Pull (${s.exhaust.mode} mode): ${title}`,
-    `${s.engine.rpmStart}–${s.engine.rpmEnd} rpm over ${s.engine.pullDurationS} s; boost gauge, units ${system === 'us' ? 'US' : 'metric'}.`,
-    ...(s.exhaust.mode === 'ratio'
-      ? ['In ratio mode the closed-wastegate boost depends only on the ratio and the efficiencies, not on rpm or',
-        'compressor size (those set spool time); use turbine mode to predict creep and closed-wastegate boost.']
-      : []),
+    `${s.engine.rpmStart}–${s.engine.rpmEnd} rpm over ${s.engine.pullDurationS} s; pressures gauge, units ${system === 'us' ? 'US' : 'metric'}.`,
     '',
     'Metrics',
-    renderPairs(pairsOf(result.metrics, system)),
+    renderPairs(metrics),
     '',
     'Flags',
     flags.length === 0 ? '  none' : flags.map((f) => `  • ${f}`).join('\n'),
     '',
-    'Solver',
-    renderPairs(pairsOf(result.stats, system)),
+    'Over the pull',
+    seriesTable,
     '',
+    'Solver',
+    renderPairs(solver),
+    '',
+    ...r.notes.map((n) => `Note: ${n}`),
     CAUTION,
   ].join('\n')
 }
