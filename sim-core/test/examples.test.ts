@@ -3,8 +3,9 @@ import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
 import { describe, expect, it } from 'vitest'
 import { readSweep } from '../src/cli/input.ts'
-import { runStaticSweep } from '../src/cli/sweep-report.ts'
-import { computeBalance, parseScenario } from '../src/index.ts'
+import { runSweep } from '../src/cli/sweep-report.ts'
+import { computeBalance, parseScenario, pointAt, type Scenario } from '../src/index.ts'
+import { runPull } from '../src/pull/index.ts'
 
 const examples = resolve(dirname(fileURLToPath(import.meta.url)), '../../examples')
 const files = readdirSync(examples).filter((f) => f.endsWith('.json')).sort()
@@ -20,29 +21,55 @@ describe('examples/', () => {
     for (const file of files) expect(readme, `README line for ${file}`).toContain(`\`${file}\``)
   })
 
+  const scenarioOf = (file: string): Scenario => {
+    const parsed = parseScenario(load(file))
+    if (!parsed.ok) throw new Error(`${file}: ${parsed.issues.map((i) => `${i.path} ${i.message}`).join('; ')}`)
+    return parsed.scenario
+  }
+
   for (const file of scenarioFiles) {
-    it(`${file} parses and its static balance opens the valve at a finite boost`, () => {
+    it(`${file} parses and its static balance opens the valve at a finite boost, under the boost limit`, () => {
       const parsed = parseScenario(load(file))
       expect(parsed.ok ? [] : parsed.issues).toEqual([])
-      if (!parsed.ok) return
-      const b = computeBalance(parsed.scenario)
+      const b = computeBalance(scenarioOf(file))
       expect(b.crack.status).toBe('opens')
-      if (b.crack.status === 'opens') {
-        expect(b.crack.boostPa).toBeGreaterThan(0)
-        expect(b.overLimit).toBe(false)
-      }
+      if (b.crack.status === 'opens') expect(b.crack.boostPa).toBeGreaterThan(0)
       expect(b.fullOpen.status).toBe('opens')
+      expect(b.overLimit).toBe(false)
+    })
+
+    it(`${file} runs a whole pull that converges, cracks the valve and stays finite`, () => {
+      const s = scenarioOf(file)
+      const r = runPull(s)
+      expect(r.stats.outcome).toBe('converged')
+      expect(r.stats.reachedS).toBeCloseTo(s.engine.pullDurationS, 9)
+      expect(r.flags.neverOpened).toBe(false)
+      for (const [name, values] of Object.entries(r.series)) {
+        expect(values.every((v: number) => Number.isFinite(v)), `series ${name} is finite`).toBe(true)
+      }
+      expect(r.metrics.crackBoostPa).not.toBeNull()
     })
   }
 
   for (const file of sweepFiles) {
-    it(`${file} parses and every point runs at the static level`, () => {
+    it(`${file} parses and every point runs at its level`, () => {
       const sweep = readSweep(load(file))
       expect(sweep.ok ? [] : sweep.issues).toEqual([])
       if (!sweep.ok) return
-      const rows = runStaticSweep(sweep.value)
+      const rows = runSweep(sweep.value)
       expect(rows).toHaveLength(sweep.value.pointCount)
-      expect(rows.every((r) => r.static.status === 'ok' && Number.isFinite(r.static.crackBoostPa))).toBe(true)
+      for (const row of rows) {
+        if (row.static) expect(row.static.status === 'ok' && Number.isFinite(row.static.crackBoostPa)).toBe(true)
+        if (row.dynamic) expect(row.dynamic.outcome).toBe('converged')
+        expect(row.static ?? row.dynamic).toBeDefined()
+      }
+    })
+
+    it(`${file}: one point of it also runs a whole pull`, () => {
+      const sweep = readSweep(load(file))
+      if (!sweep.ok) throw new Error('the sweep should parse')
+      const last = pointAt(sweep.value.scenario, sweep.value.axes, sweep.value.pointCount - 1)
+      expect(runPull(last.scenario).stats.outcome).toBe('converged')
     })
   }
 })
