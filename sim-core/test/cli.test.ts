@@ -1,9 +1,9 @@
 import { spawnSync } from 'node:child_process'
-import { mkdtempSync, writeFileSync } from 'node:fs'
+import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
-import { describe, expect, it } from 'vitest'
+import { afterAll, describe, expect, it } from 'vitest'
 import { main, type CliIo } from '../src/cli.ts'
 import { computeBalance, formatQuantity, parseScenario, type Scenario } from '../src/index.ts'
 import { runPull } from '../src/pull/index.ts'
@@ -29,6 +29,7 @@ async function run(...argv: string[]): Promise<Run> {
 }
 
 const scratch = mkdtempSync(join(tmpdir(), 'crackpoint-cli-'))
+afterAll(() => rmSync(scratch, { recursive: true, force: true }))
 function writeJson(name: string, value: unknown): string {
   const path = join(scratch, name)
   writeFileSync(path, typeof value === 'string' ? value : JSON.stringify(value))
