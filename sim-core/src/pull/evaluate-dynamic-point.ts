@@ -34,7 +34,7 @@ export function evaluateDynamicPoint(s: Scenario): DynamicPointResult {
   const ok = pull.stats.outcome === 'converged'
   const status: DynamicPointStatus = !ok
     ? 'failed'
-    : m.crackTimeS === 0
+    : m.openAtStart
       ? 'open-at-zero-boost'
       : pull.flags.neverOpened
         ? 'never-opens'

@@ -18,6 +18,11 @@ export interface HybridSystem<M> {
   derivativeInto?(t: number, y: readonly number[], mode: M, out: number[]): void
   /** Guard values of the mode; an event fires when one turns from ≤ 0 to > 0. */
   guards(t: number, y: readonly number[], mode: M): readonly number[]
+  /**
+   * Points inside each step at which to check the guards as well, so that a guard that turns positive and back
+   * within one step (a valve just touching its stop) is still caught. Worth it only where guards are cheap.
+   */
+  interiorChecks?(mode: M): number
   /** The state and mode just after guard `index` fired at (t, y). */
   onEvent(t: number, y: readonly number[], mode: M, index: number): { y: number[]; mode: M }
   /** Crossings to locate (≤ 0 to > 0) that do not change the system, e.g. the valve's crack threshold. */
@@ -55,8 +60,8 @@ export interface HybridStats {
   rejected: number
   /** Right-hand-side evaluations, counted here (odex's own count omits its dense-output calls). */
   evaluations: number
-  /** Model evaluations spent on guards and on locating events. */
-  guardEvaluations: number
+  /** Guard evaluations: at step ends, inside steps, and while locating events. */
+  guardChecks: number
   restarts: number
   /** Smallest accepted step, s, leaving out the first of each segment and steps cut short by an event or the end. */
   smallestStepS: number
@@ -110,7 +115,7 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
     steps: 0,
     rejected: 0,
     evaluations: 0,
-    guardEvaluations: 0,
+    guardChecks: 0,
     restarts: 0,
     smallestStepS: Infinity,
   }
@@ -130,7 +135,7 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
           return scratch
         }
   const guardsAt = (t: number, y: readonly number[]): readonly number[] => {
-    stats.guardEvaluations++
+    stats.guardChecks++
     return system.guards(t, y, mode)
   }
   const watchesAt = (t: number, y: readonly number[]): readonly number[] =>
@@ -200,11 +205,24 @@ export function integrateHybrid<M>(system: HybridSystem<M>, o: HybridOptions<M>)
   let firstOfSegment = true
   const acceptStep = (tOld: number, t: number, y: readonly number[], dense: Dense): boolean => {
     stats.steps++
-    const guards = guardsAt(t, y)
-    const fired = crossings(prevGuards, guards)
+    let guards = guardsAt(t, y)
+    let fired = crossings(prevGuards, guards)
+    let tEnd = t
+    const checks = fired.length === 0 && system.interiorChecks ? system.interiorChecks(mode) : 0
+    for (let k = 1; k <= checks; k++) {
+      const tk = tOld + ((t - tOld) * k) / (checks + 1)
+      const inside = guardsAt(tk, stateAt(dense, tk))
+      const early = crossings(prevGuards, inside)
+      if (early.length > 0) {
+        guards = inside
+        fired = early
+        tEnd = tk
+        break
+      }
+    }
     let tLimit = t
     if (fired.length > 0) {
-      const hit = locate(tOld, t, dense, fired, (tt, yy) => guardsAt(tt, yy))
+      const hit = locate(tOld, tEnd, dense, fired, (tt, yy) => guardsAt(tt, yy))
       tLimit = hit.t
       event = { t: hit.t, y: stateAt(dense, hit.t), index: hit.index }
     } else {

@@ -13,6 +13,8 @@ export interface PullRecord {
   /** Per sample, the valve on its full-lift stop. */
   atFullLift: boolean[]
   crack: { timeS: number; boostPa: number } | null
+  /** The valve was off its seat when the pull started. */
+  openAtStart: boolean
   /** Gas drawn from a CO₂ bottle or a tank; null when boost is the source. */
   gasUsedKg: number | null
   compressorOnS: number | null
@@ -83,6 +85,7 @@ export function pullMetrics(
   let driveRatioSeen: number | null = null
   let windowDrive = 0
   let windowBoost = 0
+  let windowIndices: number[] = []
   if (r.crack) {
     const start = r.crack.timeS + s.solver.settlingDelayS
     const idx: number[] = []
@@ -92,6 +95,7 @@ export function pullMetrics(
       const tw = idx.map((i) => t[i]!)
       const bw = idx.map((i) => boost[i]!)
       const xw = idx.map((i) => lift[i]!)
+      windowIndices = idx
       settledBoostPa = mean(bw)
       settledLiftM = mean(xw)
       windowBoost = settledBoostPa
@@ -119,7 +123,11 @@ export function pullMetrics(
       s.exhaust.mode === 'ratio' || windowBoost <= 0
         ? s.exhaust.ratio
         : (windowDrive - s.exhaust.driveAtZeroBoostPa) / windowBoost
-    const b = boostAtLift(s, settledLiftM, ratio)
+    // A closed loop's static arrangement is its solenoid held at the window's mean duty.
+    const c = s.control
+    const meanDuty = mean(windowIndices.map((i) => series.duty[i]!))
+    const atDuty = c.kind === 'closed-loop' ? { ...s, control: { ...c, dutyMin: meanDuty, dutyMax: meanDuty } } : s
+    const b = boostAtLift(atDuty, settledLiftM, ratio)
     staticBoostAtSettledLiftPa = b.status === 'opens' ? b.boostPa : null
   }
 
@@ -152,12 +160,19 @@ export function pullMetrics(
   let heldOpenByDrive = false
   let supplyBelowSetpoint = false
   let pastZeroFlowLine = false
+  let targetReached = false
   const setpoint = s.supply.kind === 'boost' ? null : s.supply.regulatorSetpointPa
   for (let i = 0; i < n; i++) {
     if (r.zeroFlowMargin[i]! <= 0 && boost[i]! > 0) pastZeroFlowLine = true
     if (setpoint !== null && series.regulatedPa[i]! < setpoint - 1e-6 * Math.max(1, setpoint)) supplyBelowSetpoint = true
+    // The target is the closed loop's, or else the static crack boost; only the run-up to it counts.
     const target = s.control.kind === 'closed-loop' ? r.targetBoostPa[i]! : staticCrackPa
-    if (target !== null && lift[i]! > s.wastegate.crackThresholdM && boost[i]! < target - HELD_OPEN_MARGIN_PA) {
+    if (target === null || targetReached) continue
+    if (boost[i]! >= target - HELD_OPEN_MARGIN_PA) {
+      targetReached = true
+      continue
+    }
+    if (lift[i]! > s.wastegate.crackThresholdM) {
       const driveForce = series.drivePa[i]! * areas.valveM2 - r.downstreamPa[i]! * areas.valveBackM2
       if (driveForce >= seatForceN + rateNPerM * lift[i]!) heldOpenByDrive = true
     }
@@ -165,6 +180,7 @@ export function pullMetrics(
 
   const metrics: PullMetrics = {
     crackBoostPa: r.crack?.boostPa ?? null,
+    openAtStart: r.openAtStart,
     crackTimeS: r.crack?.timeS ?? null,
     peakBoostPa,
     settledBoostPa,
@@ -188,7 +204,7 @@ export function pullMetrics(
     heldOpenByDrive,
     supplyBelowSetpoint,
     pastZeroFlowLine,
-    neverOpened: r.crack === null,
+    neverOpened: r.crack === null && !r.openAtStart,
     notSettled,
     supplyKeepsUp: supply.keepsUp,
   }

@@ -111,6 +111,8 @@ export interface PullModel {
   seatedAt(t: number, y: readonly number[], mode: PullMode): boolean
   /** The starting state at shaft speed `omega0`, rad/s. */
   initialState(omega0: number): { y: number[]; mode: PullMode }
+  /** Gas held in the chambers that the supply feeds, kg (p·V/(R·T) of each). */
+  supplyChamberGasKg(t: number, y: readonly number[], mode: PullMode): number
   readonly ambientPa: number
   readonly maxLiftM: number
   readonly crackThresholdM: number
@@ -640,6 +642,8 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
     },
     derivativeInto: (t, y, mode, dy) => evaluate(t, y, mode, dy),
     guards,
+    // In free flight the guards are the lift itself: cheap to check inside each step.
+    interiorChecks: (mode) => (mode.valve === 'free' ? 3 : 0),
     onEvent,
     watches: (_t, y, mode) => [(mode.valve === 'seated' ? 0 : mode.valve === 'full' ? xMax : y[liftI]!) - w.crackThresholdM],
   }
@@ -704,6 +708,15 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
     },
     seatedAt: (t, y, mode) => forceAtLift(t, y, mode, 'seated') <= 0,
     initialState,
+    supplyChamberGasKg: (t, y, mode) => {
+      evaluate(t, y, mode, null)
+      let kg = 0
+      for (const [ch, gauge] of [[top, out.topPa], [bottom, out.bottomPa]] as const) {
+        if (!ch.drawsSupply) continue
+        kg += ((gauge + pAmb) * (ch.volume0M3 + ch.volumePerLift * out.liftM)) / ch.RT
+      }
+      return kg
+    },
     ambientPa: pAmb,
     maxLiftM: xMax,
     crackThresholdM: w.crackThresholdM,

@@ -23,6 +23,8 @@ export interface PullSeries {
 export interface PullMetrics {
   /** Boost when the lift first passes the crack threshold. */
   crackBoostPa: number | null
+  /** The valve was already off its seat when the pull started (drive pressure at the starting boost beats the spring). */
+  openAtStart: boolean
   crackTimeS: number | null
   peakBoostPa: number
   /** Mean boost over the settling window (from `settlingDelayS` after the crack to the end of the pull). */
@@ -41,7 +43,10 @@ export interface PullMetrics {
   driveRatioSeen: number | null
   /** Largest lift over the maximum lift. */
   maxLiftFraction: number
-  /** Gas drawn from a CO₂ bottle or a tank in this pull. */
+  /**
+   * Gas drawn from a CO₂ bottle or a tank in this pull, plus what refills the supply-fed chambers to their starting
+   * state afterwards (so back-to-back pulls each cost this much).
+   */
   gasUsedPerPullKg: number | null
   /**
    * CO₂: pulls a full bottle gives before it can no longer hold the setpoint. Compressor: back-to-back pulls
@@ -58,7 +63,10 @@ export interface PullMetrics {
 export interface PullFlags {
   /** Peak boost above the scenario's boost limit. */
   overBoostLimit: boolean
-  /** Drive pressure alone beat the spring and held the valve open while boost was still short of its target. */
+  /**
+   * Before boost first reached its target (the closed loop's, or else the static crack boost), the valve was open
+   * with drive pressure alone beating the spring.
+   */
   heldOpenByDrive: boolean
   /** The regulator could not deliver its setpoint at some time in the pull. */
   supplyBelowSetpoint: boolean
@@ -78,7 +86,7 @@ export interface PullStats {
   rejected: number
   /** Right-hand-side evaluations by the integrator, counted in a wrapper. */
   evaluations: number
-  /** Model evaluations for guards, event location and the sampled outputs. */
+  /** Guard checks (step ends, inside steps, event location) and the sampled outputs' model evaluations. */
   auxiliaryEvaluations: number
   /** Restarts after events (valve at a stop, compressor switching). */
   restarts: number

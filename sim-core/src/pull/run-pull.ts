@@ -1,3 +1,4 @@
+import { co2BottleState } from '../co2.ts'
 import { AIR } from '../gas.ts'
 import { compressorConstants } from '../compressor.ts'
 import { fourStrokeAirFlowKgS, interpolateTable } from '../engine.ts'
@@ -72,6 +73,7 @@ export function runPull(s: Scenario, options: RunPullOptions = {}): PullResult {
     targetBoostPa: [],
     atFullLift: [],
     crack: null,
+    openAtStart: false,
     gasUsedKg: null,
     compressorOnS: s.supply.kind === 'compressor' ? 0 : null,
     durationS: duration,
@@ -121,17 +123,22 @@ export function runPull(s: Scenario, options: RunPullOptions = {}): PullResult {
     },
   })
   if (record.compressorOnS !== null && compressorSince >= 0) record.compressorOnS += result.reachedS - compressorSince
-  // A valve open from the first instant cracks at once.
-  if (record.crack === null && start.mode.valve !== 'seated' && series.liftM.length > 0) {
-    record.crack = { timeS: 0, boostPa: series.boostPa[0]! }
+  record.openAtStart = start.mode.valve !== 'seated'
+  if (model.layout.gasUsed >= 0) {
+    // What the chambers on the supply lost over the pull is drawn again to refill them before the next one.
+    const refill = model.supplyChamberGasKg(0, start.y, start.mode) - model.supplyChamberGasKg(result.reachedS, result.y, result.mode)
+    record.gasUsedKg = result.y[model.layout.gasUsed]! + Math.max(0, refill)
   }
-  if (model.layout.gasUsed >= 0) record.gasUsedKg = result.y[model.layout.gasUsed]!
 
   const supply = supplyFigures(s, record, start.y, start.mode, model.layout.supply)
   const { metrics, flags } = pullMetrics(s, record, supply)
   const notes = [BOOST_CAUTION]
   if (s.exhaust.mode === 'ratio') notes.unshift(RATIO_MODE_NOTE)
   if (s.supply.kind !== 'boost') notes.push(GAS_CAUTION)
+  if (s.supply.kind === 'co2') {
+    const bottle = co2BottleState({ volumeM3: s.supply.bottleVolumeM3, massKg: s.supply.fillMassKg, temperatureK: s.supply.bottleTemperatureK })
+    if (bottle.warning) notes.push(bottle.warning)
+  }
   return {
     series,
     metrics,
@@ -141,7 +148,7 @@ export function runPull(s: Scenario, options: RunPullOptions = {}): PullResult {
       steps: result.stats.steps,
       rejected: result.stats.rejected,
       evaluations: result.stats.evaluations,
-      auxiliaryEvaluations: result.stats.guardEvaluations + series.timeS.length,
+      auxiliaryEvaluations: result.stats.guardChecks + series.timeS.length,
       restarts: result.stats.restarts,
       smallestStepS: result.stats.smallestStepS,
       reachedS: result.reachedS,
