@@ -1,0 +1,132 @@
+import { describe, expect, it } from 'vitest'
+import { computeBalance, defaultScenario, runPull, type PullResult, type Scenario } from '../../src/index.ts'
+import { expectClose } from '../expect-close.ts'
+import { allFinite, co2Supply, psi, scenarioWith, toPsi } from './pull-helpers.ts'
+
+const base = defaultScenario()
+const settled = (r: PullResult) => r.metrics.settledBoostPa ?? Number.NaN
+
+function runs(s: Scenario): PullResult {
+  const r = runPull(s)
+  expect(r.stats.outcome).toBe('converged')
+  expect(allFinite(r.series as unknown as Record<string, number[]>)).toBe(true)
+  expect(r.flags.neverOpened).toBe(false)
+  return r
+}
+
+describe('every control arrangement runs and moves boost the right way', () => {
+  it('nothing connected: only drive pressure opens the valve, near its static crack', () => {
+    const s = scenarioWith({ control: { kind: 'none' } })
+    const r = runs(s)
+    const crack = computeBalance(s).crack
+    if (crack.status !== 'opens') throw new Error('static crack expected')
+    expectClose(toPsi(r.metrics.crackBoostPa!), toPsi(crack.boostPa), 0.5, 'crack, psi')
+    expect(settled(r)).toBeGreaterThan(settled(runPull(base)))
+    expectClose(toPsi(settled(r)), toPsi(r.metrics.staticBoostAtSettledLiftPa!), 0.01, 'settled vs static, psi')
+  })
+
+  it('top port on a regulated supply: more setpoint, more boost', () => {
+    const low = runs(scenarioWith({ control: { kind: 'top-supply' }, supply: co2Supply(5) }))
+    const high = runs(scenarioWith({ control: { kind: 'top-supply' }, supply: co2Supply(10) }))
+    expect(settled(high)).toBeGreaterThan(settled(low) + psi(3))
+    expectClose(toPsi(settled(high)), toPsi(high.metrics.staticBoostAtSettledLiftPa!), 0.01, 'settled vs static, psi')
+  })
+
+  it('a bleed to the top: a larger fraction holds the valve harder', () => {
+    const low = runs(scenarioWith({ control: { kind: 'bleed-top', fraction: 0.1 } }))
+    const high = runs(scenarioWith({ control: { kind: 'bleed-top', fraction: 0.4 } }))
+    expect(settled(high)).toBeGreaterThan(settled(low))
+    expectClose(toPsi(settled(high)), toPsi(high.metrics.staticBoostAtSettledLiftPa!), 0.02, 'settled vs static, psi')
+  })
+
+  it('three-port solenoid venting the bottom chamber: more duty, more boost', () => {
+    const at = (duty: number) => runs(scenarioWith({ control: { kind: 'solenoid-3port', chamber: 'bottom', duty } }))
+    const [a, b, c] = [at(0.1), at(0.4), at(0.8)]
+    expect(settled(b)).toBeGreaterThan(settled(a))
+    expect(settled(c)).toBeGreaterThan(settled(b))
+    expect(a.series.duty.every((d) => d === 0.1)).toBe(true)
+  })
+
+  it('three-port solenoid feeding the top chamber from CO₂: more duty, more boost, more gas', () => {
+    const at = (duty: number) =>
+      runs(scenarioWith({ control: { kind: 'solenoid-3port', chamber: 'top', duty }, supply: co2Supply(15) }))
+    const [a, b] = [at(0.2), at(0.6)]
+    expect(settled(b)).toBeGreaterThan(settled(a))
+    expect(b.metrics.gasUsedPerPullKg!).toBeGreaterThan(a.metrics.gasUsedPerPullKg!)
+  })
+
+  it('four-port solenoid: more duty, more boost', () => {
+    const at = (duty: number) => runs(scenarioWith({ control: { kind: 'solenoid-4port', duty } }))
+    expect(settled(at(0.6))).toBeGreaterThan(settled(at(0.2)))
+  })
+
+  it('closed loop: holds the boost target with its duty inside the limits, and the target follows rpm', () => {
+    const control = { kind: 'closed-loop', targetBoostPa: psi(12), dutyMin: 0.05, dutyMax: 0.95 }
+    const r = runs(scenarioWith({ control, supply: co2Supply(20) }))
+    // The settled mean sits on the target; the default gains leave some hunting about it.
+    expectClose(toPsi(settled(r)), 12, 0.5, 'settled boost, psi')
+    expect(Math.min(...r.series.duty)).toBeGreaterThanOrEqual(0.05 - 1e-12)
+    expect(Math.max(...r.series.duty)).toBeLessThanOrEqual(0.95 + 1e-12)
+    expect(r.flags.heldOpenByDrive).toBe(false)
+    const byRpm = runs(
+      scenarioWith({
+        control: { ...control, targetByRpm: [{ rpm: 4500, boostPa: psi(10) }, { rpm: 6500, boostPa: psi(14) }] },
+        supply: co2Supply(20),
+      }),
+    )
+    // Over the last half second the rpm target is 13.5–14 psi against the fixed 12.
+    const lastHalfSecond = (p: PullResult) => {
+      const tail = p.series.boostPa.slice(-50)
+      return tail.reduce((a, b) => a + b, 0) / tail.length
+    }
+    expect(lastHalfSecond(byRpm) - lastHalfSecond(r)).toBeGreaterThan(psi(1))
+  })
+
+  it('a closed loop without integral action still runs (anti-windup has nothing to track)', () => {
+    const r = runs(scenarioWith({ control: { kind: 'closed-loop', targetBoostPa: psi(12), integralPerPaS: 0 }, supply: co2Supply(20) }))
+    expect(settled(r)).toBeGreaterThan(psi(8))
+  })
+})
+
+describe('downstream of the valve and the turbine mode', () => {
+  it('a restricted dump backs up against the valve and raises boost', () => {
+    const r = runs(
+      scenarioWith({ exhaust: { ...base.exhaust, downstream: { kind: 'restricted', coefficientPaPerKg2S2: 2e6 } } }),
+    )
+    expect(settled(r)).toBeGreaterThan(settled(runPull(base)) + psi(0.3))
+  })
+
+  it('a recirculated gate sees the turbine outlet pressure', () => {
+    const r = runs(scenarioWith({ exhaust: { ...base.exhaust, downstream: { kind: 'recirculated' } } }))
+    expect(settled(r)).toBeGreaterThan(settled(runPull(base)))
+  })
+
+  it('turbine mode: the ratio comes out of the model, and the static balance at that ratio matches', () => {
+    const tight = runs(scenarioWith({ exhaust: { ...base.exhaust, mode: 'turbine', turbineAreaM2: 5e-4 } }))
+    const open = runs(scenarioWith({ exhaust: { ...base.exhaust, mode: 'turbine', turbineAreaM2: 8e-4 } }))
+    // A smaller turbine backs up more drive pressure for the same boost.
+    expect(tight.metrics.driveRatioSeen!).toBeGreaterThan(open.metrics.driveRatioSeen!)
+    expect(tight.notes.join(' ')).not.toMatch(/Ratio mode/)
+    for (const r of [tight, open]) {
+      expectClose(toPsi(settled(r)), toPsi(r.metrics.staticBoostAtSettledLiftPa!), 0.01, 'settled vs static, psi')
+    }
+  })
+})
+
+describe('chambers full or quasi-static (MODEL.md §4a)', () => {
+  it('treats 4 mm ports as quasi-static and 1 mm ports as full', () => {
+    expect(runPull(base).stats.chambers).toEqual({ top: 'full', bottom: 'full' })
+    const big = scenarioWith({ wastegate: { ...base.wastegate, portDiameterM: 0.004 } })
+    expect(runPull(big).stats.chambers).toEqual({ top: 'quasi-static', bottom: 'quasi-static' })
+  })
+
+  it('with 4 mm ports both treatments settle alike; with 1 mm ports quasi-static is measurably off the crack', () => {
+    const big = scenarioWith({ wastegate: { ...base.wastegate, portDiameterM: 0.004 } })
+    const bigFull = runPull(big, { chambers: 'full' })
+    const bigQuasi = runPull(big)
+    expect(bigFull.stats.outcome).toBe('converged')
+    expectClose(toPsi(settled(bigFull)), toPsi(settled(bigQuasi)), 0.01, 'settled, psi')
+    const smallQuasi = runPull(base, { chambers: 'quasi-static' })
+    expect(Math.abs(toPsi(runPull(base).metrics.crackBoostPa! - smallQuasi.metrics.crackBoostPa!))).toBeGreaterThan(0.05)
+  })
+})

@@ -1,0 +1,135 @@
+import { describe, expect, it } from 'vitest'
+import {
+  defaultScenario,
+  evaluateDynamicPoint,
+  pullMetrics,
+  runPull,
+  type PullRecord,
+  type Scenario,
+} from '../../src/index.ts'
+import { psi, scenarioWith } from './pull-helpers.ts'
+
+const base = defaultScenario()
+
+describe('outcomes and bad configuration', () => {
+  it('returns running out of steps as an outcome with statistics and a partial series', () => {
+    const r = runPull(scenarioWith({ solver: { maxSteps: 100 } }))
+    expect(r.stats.outcome).toBe('max-steps')
+    expect(r.stats.reachedS).toBeLessThan(base.engine.pullDurationS)
+    expect(r.stats.steps + r.stats.rejected).toBeLessThanOrEqual(100)
+    expect(r.series.timeS.at(-1)!).toBeLessThanOrEqual(r.stats.reachedS + 1e-12)
+    expect(r.metrics.settledBoostPa).toBeNull()
+    expect(r.flags.notSettled).toBe(true)
+    expect(evaluateDynamicPoint(scenarioWith({ solver: { maxSteps: 100 } }))).toMatchObject({ status: 'failed', outcome: 'max-steps' })
+  })
+
+  it('throws for configuration that cannot be run, naming the field or option', () => {
+    const tooSmall = scenarioWith({ wastegate: { ...base.wastegate, topChamberVolumeM3: 20e-6 } })
+    expect(() => runPull(tooSmall)).toThrow(/wastegate\.topChamberVolumeM3/)
+    const cutOut = scenarioWith({ control: { kind: 'both' }, supply: { kind: 'compressor', regulatorSetpointPa: psi(10), cutInPa: 900_000, cutOutPa: 800_000 } })
+    expect(() => runPull(cutOut)).toThrow(/supply\.cutOutPa/)
+    const overfilled = scenarioWith({ control: { kind: 'both' }, supply: { kind: 'co2', regulatorSetpointPa: psi(10), fillMassKg: 20 } })
+    expect(() => runPull(overfilled)).toThrow(/supply\.fillMassKg/)
+    expect(() => runPull(base, { relativeTolerance: 0 })).toThrow(/options\.relativeTolerance/)
+    expect(() => runPull(base, { integrator: { kind: 'euler' } as never })).toThrow(/options\.integrator\.kind/)
+    expect(() => runPull(base, { chambers: 'sometimes' as never })).toThrow(/options\.chambers/)
+  })
+})
+
+describe('flags from whole pulls', () => {
+  it('flags boost over the limit', () => {
+    const r = runPull({ ...base, boostLimitPa: psi(4) })
+    expect(r.flags.overBoostLimit).toBe(true)
+    expect(runPull(base).flags.overBoostLimit).toBe(false)
+  })
+
+  it('flags a spring boost never beats, and a sweep point says so', () => {
+    const stiff: Scenario = { ...base, springs: [{ from: 'seat', seatForceN: 2000, rateNPerM: 3500 }], exhaust: { ...base.exhaust, ratio: 0.5 } }
+    const r = runPull(stiff)
+    expect(r.flags.neverOpened).toBe(true)
+    expect(r.metrics.crackBoostPa).toBeNull()
+    expect(r.metrics.settledBoostPa).toBeNull()
+    expect(evaluateDynamicPoint(stiff)).toMatchObject({ status: 'never-opens', crackBoostPa: null, settledBoostPa: null })
+  })
+
+  it('flags a valve that drive pressure pushes open short of the boost asked for (a small turbine)', () => {
+    const r = runPull(scenarioWith({ control: { kind: 'none' }, exhaust: { ...base.exhaust, mode: 'turbine', turbineAreaM2: 3e-4 } }))
+    expect(r.flags.heldOpenByDrive).toBe(true)
+    expect(runPull(base).flags.heldOpenByDrive).toBe(false)
+  })
+
+  it('reports a valve already open when the pull starts', () => {
+    const point = evaluateDynamicPoint(scenarioWith({ exhaust: { ...base.exhaust, mode: 'turbine', turbineAreaM2: 2e-4 } }))
+    expect(point.status).toBe('open-at-zero-boost')
+  })
+
+  it('gives a sweep the compact numbers of a pull', () => {
+    const point = evaluateDynamicPoint(base)
+    const pull = runPull(base)
+    expect(point.status).toBe('ok')
+    expect(point.settledBoostPa).toBe(pull.metrics.settledBoostPa)
+    expect(point.crackBoostPa).toBe(pull.metrics.crackBoostPa)
+    expect(point.flags).toEqual(pull.flags)
+    expect(JSON.parse(JSON.stringify(point))).toEqual(point)
+  })
+})
+
+describe('flags from a recorded pull', () => {
+  /** A flat recorded pull: boost rises to 5 psi, the valve opens at 1 s, and `edit` changes one column. */
+  function record(edit: (r: PullRecord) => void): PullRecord {
+    const n = 401
+    const t = Array.from({ length: n }, (_, i) => i * 0.01)
+    const boost = t.map((x) => psi(Math.min(5, 5 * x)))
+    const r: PullRecord = {
+      series: {
+        timeS: t,
+        rpm: t.map((x) => 3000 + 1000 * x),
+        boostPa: boost,
+        drivePa: boost.map((b) => 1.5 * b),
+        liftM: t.map((x) => (x > 1 ? 0.003 : 0)),
+        shaftSpeedRadS: t.map(() => 9000),
+        topPa: t.map(() => 0),
+        bottomPa: boost,
+        supplyPa: boost,
+        regulatedPa: boost,
+        duty: t.map(() => 0),
+      },
+      zeroFlowMargin: t.map(() => 0.2),
+      downstreamPa: t.map(() => 0),
+      targetBoostPa: t.map(() => 0),
+      atFullLift: t.map(() => false),
+      crack: { timeS: 1, boostPa: psi(5) },
+      openAtStart: false,
+      gasUsedKg: null,
+      compressorOnS: null,
+      durationS: 4,
+    }
+    edit(r)
+    return r
+  }
+  const flagsOf = (r: PullRecord) => pullMetrics(base, r, { pullsPerSupply: null, keepsUp: false, holdPa: null }).flags
+
+  it('flags the compressor at its zero-flow line only while there is boost', () => {
+    expect(flagsOf(record(() => undefined)).pastZeroFlowLine).toBe(false)
+    expect(flagsOf(record((r) => (r.zeroFlowMargin[300] = -0.01))).pastZeroFlowLine).toBe(true)
+    expect(flagsOf(record((r) => (r.zeroFlowMargin[0] = -0.01))).pastZeroFlowLine).toBe(false)
+  })
+
+  it('flags scatter in the settling window', () => {
+    expect(flagsOf(record(() => undefined)).notSettled).toBe(false)
+    const ringing = record((r) => {
+      r.series.boostPa = r.series.boostPa.map((b, i) => (i > 250 ? b + psi(0.2) * Math.sin(i) : b))
+    })
+    expect(flagsOf(ringing).notSettled).toBe(true)
+  })
+
+  it('measures creep over a stretch at full lift', () => {
+    const creeping = record((r) => {
+      r.atFullLift = r.atFullLift.map((_, i) => i >= 200)
+      r.series.boostPa = r.series.boostPa.map((b, i) => (i >= 200 ? b + psi(0.5) * ((i - 200) / 200) : b))
+    })
+    const m = pullMetrics(base, creeping, { pullsPerSupply: null, keepsUp: false, holdPa: null }).metrics
+    expect(m.creepPa).toBeCloseTo(psi(0.5), 6)
+    expect(pullMetrics(base, record(() => undefined), { pullsPerSupply: null, keepsUp: false, holdPa: null }).metrics.creepPa).toBeNull()
+  })
+})
