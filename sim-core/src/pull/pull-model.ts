@@ -97,7 +97,6 @@ interface ChamberModel {
   /** dV/dx: −A_p for the top chamber, +(A_p − A_s) for the bottom. */
   readonly volumePerLift: number
   readonly drawsSupply: boolean
-  readonly stiffnessPerS: number
 }
 
 export interface PullModel {
@@ -107,16 +106,10 @@ export interface PullModel {
   readonly chamberTreatment: { top: 'full' | 'quasi-static'; bottom: 'full' | 'quasi-static' }
   /** Outputs at a state (a fresh object). */
   outputs(t: number, y: readonly number[], mode: PullMode): PullOutputs
-  /** Whether the valve is held on its seat with this state (F_net(0) ≤ 0). */
-  seatedAt(t: number, y: readonly number[], mode: PullMode): boolean
   /** The starting state at shaft speed `omega0`, rad/s. */
   initialState(omega0: number): { y: number[]; mode: PullMode }
   /** Gas held in the chambers that the supply feeds, kg (p·V/(R·T) of each). */
   supplyChamberGasKg(t: number, y: readonly number[], mode: PullMode): number
-  readonly ambientPa: number
-  readonly maxLiftM: number
-  readonly crackThresholdM: number
-  readonly consumesGas: boolean
 }
 
 const bad = (path: string, message: string) => new RangeError(`${path} ${message}`)
@@ -164,7 +157,6 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   const flowPerRpm = e.displacementM3 / (120 * AIR.gasConstant)
   const icEffectiveness = e.intercoolerEffectiveness ?? null
   const chargeFixedK = e.chargeTemperatureK
-  const airExponent = (AIR.gamma - 1) / AIR.gamma
   const intakeFactor = AIR.gasConstant / e.intakeVolumeM3
 
   // Turbo.
@@ -243,8 +235,10 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
           targetKeys: c.targetByRpm?.map((p) => p.rpm) ?? null,
           targetValues: c.targetByRpm?.map((p) => p.boostPa) ?? null,
           target: c.targetBoostPa,
-          // Back-calculation anti-windup with the tracking time T_t = T_i = K_p/K_i (or 0.1 s for pure I).
-          tracking: c.integralPerPaS > 0 ? 1 / (c.integralPerPaS * (c.proportionalPerPa > 0 ? c.proportionalPerPa / c.integralPerPaS : 0.1)) : 0,
+          // Back-calculation anti-windup, dI/dt = e + (d_sat − d)/(K_i·T_t), with the tracking time T_t = T_i = K_p/K_i
+          // (0.1 s for a pure integral controller); 1/(K_i·T_t) is kept.
+          tracking:
+            c.integralPerPaS <= 0 ? 0 : c.proportionalPerPa > 0 ? 1 / c.proportionalPerPa : 1 / (0.1 * c.integralPerPaS),
         }
       : null
   if (loop && loop.dutyMax < loop.dutyMin) throw bad('control.dutyMax', 'must be at least control.dutyMin')
@@ -280,7 +274,6 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       volume0M3,
       volumePerLift,
       drawsSupply: consumesGas && conns.some((k) => k.source === 'supply'),
-      stiffnessPerS,
       quasi,
     }
   }
@@ -567,6 +560,9 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       if (gasI >= 0) dy[gasI] = draw
     }
 
+    out.netForceN = force
+    // The derivative path needs nothing more; outputs, guards and the start state read the rest.
+    if (dy) return
     out.rpm = rpm
     out.boostPa = pim - pAmb
     out.drivePa = pem - pAmb
@@ -579,7 +575,6 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
     out.duty = duty
     out.liftM = liftPos
     out.shaftSpeedRadS = omegaState
-    out.netForceN = force
     out.compressorFlowKgS = mc
     out.engineFlowKgS = meng
     out.exhaustFlowKgS = mexh
@@ -706,7 +701,6 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       evaluate(t, y, mode, null)
       return { ...out }
     },
-    seatedAt: (t, y, mode) => forceAtLift(t, y, mode, 'seated') <= 0,
     initialState,
     supplyChamberGasKg: (t, y, mode) => {
       evaluate(t, y, mode, null)
@@ -717,9 +711,5 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       }
       return kg
     },
-    ambientPa: pAmb,
-    maxLiftM: xMax,
-    crackThresholdM: w.crackThresholdM,
-    consumesGas,
   }
 }
