@@ -230,3 +230,50 @@ describe('PATCH /api/scenarios/:id', () => {
     expect(row).toMatchObject({ name: 'Not yours', version: 1 });
   });
 });
+
+describe('GET /api/scenarios filters and sorting', () => {
+  it('filters by part of the name and by owner, and sorts by name either way', async () => {
+    const a = await createAs('engineer', { name: 'Filter Alpha gate' });
+    const b = await createAs('builder', { name: 'filter beta gate' });
+    const c = await createAs('builder', { name: 'Filter Gamma gate' });
+    const get = async (query: Record<string, string>) =>
+      ((await request(ctx.app).get('/api/scenarios').query(query).set(bearer(tokens.analyst))).body.items as { id: string }[]).map((s) => s.id);
+    expect(await get({ q: 'FILTER', sort: 'name', order: 'asc' })).toEqual([a.body.scenario.id, b.body.scenario.id, c.body.scenario.id]);
+    expect(await get({ q: 'filter', sort: 'name', order: 'desc' })).toEqual([c.body.scenario.id, b.body.scenario.id, a.body.scenario.id]);
+    expect(await get({ q: 'filter', ownerId: shop.members.builder.id, sort: 'createdAt', order: 'asc' })).toEqual([b.body.scenario.id, c.body.scenario.id]);
+  });
+
+  it('returns 400 naming a sort or owner it cannot use', async () => {
+    const response = await request(ctx.app).get('/api/scenarios?sort=boost&ownerId=someone').set(bearer(tokens.analyst));
+    expect(response.status).toBe(400);
+    expect(Object.keys(response.body.error.fields).sort()).toEqual(['ownerId', 'sort']);
+  });
+});
+
+describe('DELETE /api/scenarios/:id', () => {
+  it('deletes the scenario with its sweeps and audits what it was', async () => {
+    const created = await createAs('engineer', { name: 'To delete' });
+    const id = created.body.scenario.id;
+    const sweep = await request(ctx.app)
+      .post('/api/sweeps')
+      .set(bearer(tokens.engineer))
+      .send({ scenarioId: id, axes: [{ path: 'exhaust.ratio', values: [1.2, 1.5] }] });
+    expect(sweep.status).toBe(201);
+    const response = await request(ctx.app).delete(`/api/scenarios/${id}`).set(bearer(tokens.admin));
+    expect(response.status).toBe(204);
+    expect(await ctx.knex('scenarios').where({ id })).toHaveLength(0);
+    expect(await ctx.knex('sweeps').where({ id: sweep.body.sweep.id })).toHaveLength(0);
+    const audit = await ctx.knex('audit_log').where({ entity_id: id, action: 'delete' }).first();
+    expect(audit).toMatchObject({ actor_id: shop.members.admin.id, entity_type: 'scenario' });
+    expect(audit.changes.name).toEqual({ from: 'To delete' });
+  });
+
+  it("lets a builder delete their own scenario but not an engineer's", async () => {
+    const own = await createAs('builder', { name: 'Builder deletes own' });
+    expect((await request(ctx.app).delete(`/api/scenarios/${own.body.scenario.id}`).set(bearer(tokens.builder))).status).toBe(204);
+    const other = await createAs('engineer', { name: 'Builder may not delete' });
+    const refused = await request(ctx.app).delete(`/api/scenarios/${other.body.scenario.id}`).set(bearer(tokens.builder));
+    expect(refused.status).toBe(403);
+    expect(await ctx.knex('scenarios').where({ id: other.body.scenario.id })).toHaveLength(1);
+  });
+});

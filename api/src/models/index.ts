@@ -6,3 +6,7 @@ export { Sweep, SWEEP_LEVELS, SWEEP_STATES, type SweepLevel, type SweepState, ty
 export { SweepChunk, CHUNK_STATES, type ChunkState } from './sweep-chunk.ts';
 export { SweepPoint, POINT_STATUSES, type PointStatus } from './sweep-point.ts';
 export { RevokedToken } from './revoked-token.ts';
+export { LibraryItem } from './library-item.ts';
+export { Wastegate, Spring, Turbo, Engine, Supply } from './library-items.ts';
+export { ScenarioSpring } from './scenario-spring.ts';
+export { AuditEntry, type AuditAction, type AuditChange } from './audit-entry.ts';

@@ -1,6 +1,7 @@
 import type { Scenario as ScenarioData } from '@crackpoint/sim-core';
 import type { Modifiers, QueryBuilder, RelationMappings } from 'objection';
 import { BaseModel } from './base-model.ts';
+import { ScenarioSpring } from './scenario-spring.ts';
 import { User } from './user.ts';
 import { Workspace } from './workspace.ts';
 
@@ -13,9 +14,15 @@ export class Scenario extends BaseModel {
   name!: string;
   data!: ScenarioData;
   version!: number;
+  /** The library parts the scenario was built from (its data is a copy; later edits of a part do not flow in). */
+  engineId!: string | null;
+  turboId!: string | null;
+  wastegateId!: string | null;
+  supplyId!: string | null;
 
   workspace?: Workspace;
   owner?: User | null;
+  springSources?: ScenarioSpring[];
 
   // Without a jsonSchema Objection cannot tell which columns are JSON; pg would otherwise write an
   // array as a PostgreSQL array literal instead of jsonb.
@@ -39,6 +46,11 @@ export class Scenario extends BaseModel {
       relation: BaseModel.BelongsToOneRelation,
       modelClass: User,
       join: { from: 'scenarios.owner_id', to: 'users.id' },
+    },
+    springSources: {
+      relation: BaseModel.HasManyRelation,
+      modelClass: ScenarioSpring,
+      join: { from: 'scenarios.id', to: 'scenario_springs.scenario_id' },
     },
   });
 }

@@ -1,6 +1,7 @@
 import { authRoutes } from './auth.ts';
 import { balanceRoutes } from './balance.ts';
 import { healthRoutes } from './health.ts';
+import { libraryRoutes } from './library.ts';
 import type { AnyRoute } from './route-def.ts';
 import { scenarioRoutes } from './scenarios.ts';
 import { sweepRoutes } from './sweeps.ts';
@@ -15,4 +16,5 @@ export const routeTable: readonly AnyRoute[] = [
   ...scenarioRoutes,
   ...balanceRoutes,
   ...sweepRoutes,
+  ...libraryRoutes,
 ];

@@ -1,11 +1,12 @@
-import { idParamsSchema, paginationQuerySchema } from '../schemas/common.ts';
+import { idParamsSchema } from '../schemas/common.ts';
 import {
   createScenarioBodySchema,
+  listScenariosQuerySchema,
   scenarioListSchema,
   scenarioResponseSchema,
   updateScenarioBodySchema,
 } from '../schemas/scenarios.ts';
-import { createScenario, getScenario, listScenarios, updateScenario } from '../services/scenarios.ts';
+import { createScenario, deleteScenario, getScenario, listScenarios, updateScenario } from '../services/scenarios.ts';
 import { defineRoute, ROLES } from './route-def.ts';
 
 export const scenarioRoutes = [
@@ -13,11 +14,11 @@ export const scenarioRoutes = [
     id: 'listScenarios',
     method: 'get',
     path: '/scenarios',
-    summary: "The workspace's scenarios, most recently changed first",
+    summary: "The workspace's scenarios, filtered, sorted (most recently changed first unless asked) and paged",
     tag: 'Scenarios',
     access: ROLES.everyone,
     scope: 'collection',
-    query: paginationQuerySchema,
+    query: listScenariosQuerySchema,
     success: { status: 200, description: 'One page of scenarios', schema: scenarioListSchema },
     handler: ({ deps, auth, query }) => listScenarios(deps.knex, auth.workspaceId, query),
   }),
@@ -38,12 +39,13 @@ export const scenarioRoutes = [
     id: 'createScenario',
     method: 'post',
     path: '/scenarios',
-    summary: 'Create a scenario (the default scenario when data is left out)',
+    summary: 'Create a scenario: the default one when data is left out; library parts named in sources replace their sections',
     tag: 'Scenarios',
     access: ROLES.compute,
     scope: 'collection',
     body: createScenarioBodySchema,
     success: { status: 201, description: 'Created', schema: scenarioResponseSchema },
+    errors: [422],
     handler: async ({ deps, auth, body }) => ({ scenario: await createScenario(deps.knex, auth, body) }),
   }),
   defineRoute({
@@ -58,7 +60,22 @@ export const scenarioRoutes = [
     params: idParamsSchema,
     body: updateScenarioBodySchema,
     success: { status: 200, description: 'Changed, with the version one higher', schema: scenarioResponseSchema },
-    errors: [409],
+    errors: [409, 422],
     handler: async ({ deps, auth, params, body }) => ({ scenario: await updateScenario(deps.knex, auth, params.id, body) }),
+  }),
+  defineRoute({
+    id: 'deleteScenario',
+    method: 'delete',
+    path: '/scenarios/:id',
+    summary: 'Delete a scenario with its sweeps (builders: only their own)',
+    tag: 'Scenarios',
+    access: ROLES.compute,
+    scope: 'object',
+    resource: 'Scenario',
+    params: idParamsSchema,
+    success: { status: 204, description: 'Deleted' },
+    handler: async ({ deps, auth, params }) => {
+      await deleteScenario(deps.knex, auth, params.id);
+    },
   }),
 ];

@@ -8,6 +8,7 @@ import type { Config } from '../config.ts';
 import { AppError } from '../errors/index.ts';
 import { RevokedToken, User, USER_ROLES, Workspace, type UserRole } from '../models/index.ts';
 import type { ChangePasswordBody, RegisterBody, SignInBody, SignInResponse, SignOutBody, UserView } from '../schemas/auth.ts';
+import { recordAudit, snapshotChanges } from './audit.ts';
 import { passwordProblem } from './password-rules.ts';
 
 const INVALID_CREDENTIALS = 'E-mail or password is not right.';
@@ -156,6 +157,14 @@ export async function register(knex: Knex, config: Config, input: RegisterBody):
         throw error instanceof UniqueViolationError ? emailTaken() : error;
       });
     member.workspace = workspace;
+    await recordAudit(trx, {
+      workspaceId: workspace.id,
+      actorId: member.id,
+      action: 'register',
+      entityType: 'workspace',
+      entityId: workspace.id,
+      changes: snapshotChanges({ name: workspace.name, adminEmail: member.email, adminDisplayName: member.displayName }, 'to'),
+    });
     return member;
   });
   return { token: signToken(config, user), user: presentUser(user) };
@@ -204,11 +213,23 @@ export async function changePassword(
   if (problem) throw AppError.validation({ newPassword: problem }, 'The new password cannot be used.');
 
   const passwordHash = await hashPassword(input.newPassword, config.bcryptCost);
-  const [updated] = await User.query(knex)
-    .where('users.id', auth.userId)
-    .patch({ passwordHash, tokenVersion: raw('token_version + 1') })
-    .returning('*');
-  if (!updated) throw AppError.unauthorized(SESSION_ENDED, 'invalid_token');
+  const updated = await knex.transaction(async (trx) => {
+    const [row] = await User.query(trx)
+      .where('users.id', auth.userId)
+      .patch({ passwordHash, tokenVersion: raw('token_version + 1') })
+      .returning('*');
+    if (!row) throw AppError.unauthorized(SESSION_ENDED, 'invalid_token');
+    // That the password changed, and by whom; never the password or its hash.
+    await recordAudit(trx, {
+      workspaceId: row.workspaceId,
+      actorId: row.id,
+      action: 'change_password',
+      entityType: 'user',
+      entityId: row.id,
+      changes: {},
+    });
+    return row;
+  });
   updated.workspace = current.workspace;
   return { token: signToken(config, updated), user: presentUser(updated) };
 }

@@ -1,7 +1,7 @@
 import { ROLES as ROLE_SETS } from '@crackpoint/api';
 import { defaultScenario } from '@crackpoint/sim-core';
 import { TEST_PASSWORD, type Role, type TestWorkspace } from './context.ts';
-import type { Side, World } from './world.ts';
+import { LIBRARY_TABLES, PART_SAMPLES, type LibraryTable, type Side, type World } from './world.ts';
 
 /** One cell of the authorization matrix. */
 export interface Call {
@@ -68,6 +68,10 @@ export const routeFixtures: Record<string, RouteFixture> = {
     }),
   },
 
+  deleteScenario: {
+    prepare: async ({ world, target, role }) => ({ path: `/scenarios/${await world.scenario(target, authorOf(role))}` }),
+  },
+
   computeBalance: { prepare: async () => ({ path: '/balance', body: { scenario: defaultScenario() } }) },
 
   createSweep: {
@@ -88,3 +92,31 @@ export const routeFixtures: Record<string, RouteFixture> = {
     }),
   },
 };
+
+/** Route ids of a library kind, as the API names them (listSprings, getSpring, …). */
+const LIBRARY_NAMES: Record<LibraryTable, { plural: string; singular: string }> = {
+  wastegates: { plural: 'Wastegates', singular: 'Wastegate' },
+  springs: { plural: 'Springs', singular: 'Spring' },
+  turbos: { plural: 'Turbos', singular: 'Turbo' },
+  engines: { plural: 'Engines', singular: 'Engine' },
+  supplies: { plural: 'Supplies', singular: 'Supply' },
+};
+
+const unique = () => Math.random().toString(36).slice(2, 10);
+
+for (const table of LIBRARY_TABLES) {
+  const { plural, singular } = LIBRARY_NAMES[table];
+  const collection = `/library/${table}`;
+  routeFixtures[`list${plural}`] = { prepare: async () => ({ path: collection, query: { limit: 200, archived: 'all' } }) };
+  routeFixtures[`get${singular}`] = { prepare: async ({ world, target }) => ({ path: `${collection}/${await world.part(target, table)}` }) };
+  routeFixtures[`create${singular}`] = {
+    prepare: async () => ({ path: collection, body: { name: `Matrix ${singular} ${unique()}`, data: PART_SAMPLES[table]() } }),
+  };
+  routeFixtures[`update${singular}`] = {
+    prepare: async ({ world, target }) => ({
+      path: `${collection}/${await world.part(target, table)}`,
+      body: { name: `Renamed ${singular} ${unique()}`, version: 1 },
+    }),
+  };
+  routeFixtures[`delete${singular}`] = { prepare: async ({ world, target }) => ({ path: `${collection}/${await world.part(target, table)}` }) };
+}

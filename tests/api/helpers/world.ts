@@ -16,6 +16,18 @@ import {
 
 export type Side = 'own' | 'foreign';
 
+export const LIBRARY_TABLES = ['wastegates', 'springs', 'turbos', 'engines', 'supplies'] as const;
+export type LibraryTable = (typeof LIBRARY_TABLES)[number];
+
+/** A valid part of each kind: the default scenario's own sections. */
+export const PART_SAMPLES: Record<LibraryTable, () => unknown> = {
+  wastegates: () => defaultScenario().wastegate,
+  springs: () => defaultScenario().springs[0],
+  turbos: () => defaultScenario().turbo,
+  engines: () => defaultScenario().engine,
+  supplies: () => ({ kind: 'co2', regulatorSetpointPa: 103_421, regulatorDroopPa: 20_000, bottleVolumeM3: 0.0046, fillMassKg: 2.27, bottleTemperatureK: 298.15 }),
+};
+
 /**
  * Two workspaces with one member of each role, and factories that write records straight to the
  * database (fast, and independent of the routes under test). Every id made is remembered per workspace,
@@ -33,6 +45,8 @@ export interface World {
   idsOf(workspace: TestWorkspace): ReadonlySet<string>;
   scenario(workspace: TestWorkspace, owner: Role, name?: string): Promise<string>;
   sweep(workspace: TestWorkspace, scenarioId: string): Promise<string>;
+  /** A part of the workspace's library (table = its kind: wastegates, springs, …). */
+  part(workspace: TestWorkspace, table: LibraryTable, name?: string): Promise<string>;
   /** A new member with a session of their own, for routes that spend or change the session. */
   member(workspace: TestWorkspace, role: Role): Promise<{ id: string; email: string; token: string }>;
   /** An e-mail for a workspace a test registers; the workspace goes when the world closes. */
@@ -89,6 +103,13 @@ export async function createWorld(ctx: TestContext, label: string): Promise<Worl
         })
         .returning<{ id: string }[]>('id');
       if (!row) throw new Error('sweep not written');
+      return world.track(workspace, row.id);
+    },
+    async part(workspace, table, name = `Part ${randomUUID().slice(0, 8)}`) {
+      const [row] = await knex(table)
+        .insert({ workspace_id: workspace.id, name, data: JSON.stringify(PART_SAMPLES[table]()), created_by: workspace.members.engineer.id })
+        .returning<{ id: string }[]>('id');
+      if (!row) throw new Error('part not written');
       return world.track(workspace, row.id);
     },
     async member(workspace, role) {
