@@ -42,13 +42,13 @@ function run<M>(system: HybridSystem<M>, mode0: M, integrator: IntegratorChoice,
 
 describe('hybrid integrator on the damped oscillator (closed form)', () => {
   for (const rtol of [1e-6, 1e-9]) {
-    it(`follows the closed form within 20·rtol on the dense samples, odex rtol ${rtol}`, () => {
+    it(`follows the closed form within 5·rtol on the dense samples, odex rtol ${rtol}`, () => {
       const { result, samples } = run(damped, 'free' as const, { kind: 'odex' }, rtol)
       expect(result.stats.outcome).toBe('converged')
       expect(samples).toHaveLength(201)
       expectClose(samples[200]!.t, 2, 1e-12, 'last sample time')
-      // Global error of a tolerance-controlled method grows with the number of steps; 20·rtol over 2 s (~6 periods).
-      for (const s of samples) expectClose(s.x, dampedExact(s.t), 20 * rtol, `x at ${s.t}`)
+      // A tolerance-controlled method's global error over 2 s (six periods) stays near rtol; 5·rtol leaves room.
+      for (const s of samples) expectClose(s.x, dampedExact(s.t), 5 * rtol, `x at ${s.t}`)
       expect(result.stats.evaluations).toBeGreaterThan(result.stats.steps)
     })
   }
