@@ -1,17 +1,9 @@
-import { existsSync, mkdirSync, mkdtempSync, rmSync } from 'node:fs'
-import type { Server } from 'node:http'
-import type { AddressInfo } from 'node:net'
-import { tmpdir } from 'node:os'
-import { dirname, join } from 'node:path'
-import { fileURLToPath } from 'node:url'
-import { Queue } from 'bullmq'
-import { Redis } from 'ioredis'
 import type { Knex } from 'knex'
-import { chromium, type BrowserContext, type Page } from 'playwright-core'
+import type { Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
-import { createApp, createKnex, DEMO_PASSWORD, loadConfig, seedDemoWorkspace } from '@crackpoint/api'
+import { DEMO_PASSWORD } from '@crackpoint/api'
 import { computeBalance, formatQuantity, fromDisplay, getAtPath, parseScenario, setAtPath, toDisplay, type UnitSystem } from '@crackpoint/sim-core'
-import { createSweepWorker, type SweepChunkJob, type SweepWorker } from '@crackpoint/worker'
+import { screenshotPath, startHarness, type Harness } from './helpers/browser-harness.ts'
 
 /**
  * The thin path in a real browser: sign in, open the demo scenario, read the live balance, change the
@@ -19,74 +11,23 @@ import { createSweepWorker, type SweepChunkJob, type SweepWorker } from '@crackp
  * app run in this process against the PostgreSQL and Redis that `npm test` provides.
  */
 
-const repoRoot = join(dirname(fileURLToPath(import.meta.url)), '..', '..')
-const SCREENSHOT = join(repoRoot, 'test-results', 'e2e', 'thin-path.png')
 const EMAIL = 'engineer@harrowlane.example'
 /** Seat forces to type, in the unit system of the engineer's profile; the one that differs from the saved spring is used. */
 const SEAT_FORCE_CHOICES = { us: [35, 33], metric: [155, 145] } as const
 
-const config = loadConfig({ ...process.env, PORT: '0', NODE_ENV: 'test' })
-
+let harness: Harness
 let knex: Knex
-let redis: Redis
-let queue: Queue<SweepChunkJob>
-let worker: SweepWorker
-let server: Server
-let baseUrl: string
-let profileDir: string
-let context: BrowserContext
 let page: Page
+let baseUrl: string
 let scenarioId: string
-const pageErrors: string[] = []
 
 beforeAll(async () => {
-  if (!existsSync(join(config.webDist, 'index.html'))) {
-    throw new Error(`No built web app in ${config.webDist}: npm test builds it, or run \`npm run build\` and set WEB_DIST.`)
-  }
-  knex = createKnex(config.databaseUrl)
-  const seeded = await seedDemoWorkspace(knex, { bcryptCost: config.bcryptCost })
-  scenarioId = seeded.scenarioId
-
-  // A queue of this run's own, so no other worker on the same Redis takes its chunks.
-  const queueName = `sweep-chunks-e2e-${process.pid}-${Date.now()}`
-  redis = new Redis(config.redisUrl, { maxRetriesPerRequest: null })
-  queue = new Queue<SweepChunkJob>(queueName, { connection: redis })
-  worker = createSweepWorker({ knex, redis: config.redisUrl, queueName, concurrency: 2 })
-
-  const app = createApp({ knex, queue, config })
-  server = await new Promise<Server>((resolve, reject) => {
-    const listening = app.listen(0, '127.0.0.1', () => resolve(listening))
-    listening.on('error', reject)
-  })
-  baseUrl = `http://127.0.0.1:${(server.address() as AddressInfo).port}`
-
-  profileDir = mkdtempSync(join(tmpdir(), 'crackpoint-e2e-browser-'))
-  context = await chromium.launchPersistentContext(profileDir, {
-    executablePath: process.env.CHROMIUM_PATH ?? '/usr/bin/chromium',
-    headless: true,
-    viewport: { width: 1440, height: 1000 },
-    args: [
-      '--no-sandbox',
-      '--disable-gpu',
-      '--disable-quic',
-      '--no-first-run',
-      '--disable-background-networking',
-      '--disable-component-update',
-      '--disable-sync',
-    ],
-  })
-  page = context.pages()[0] ?? (await context.newPage())
-  page.on('pageerror', (error) => pageErrors.push(error.message))
+  harness = await startHarness()
+  ;({ knex, page, baseUrl, scenarioId } = harness)
 })
 
 afterAll(async () => {
-  await context?.close()
-  if (profileDir) rmSync(profileDir, { recursive: true, force: true })
-  if (server) await new Promise<void>((resolve) => server.close(() => resolve()))
-  await worker?.close()
-  await queue?.close()
-  await redis?.quit()
-  await knex?.destroy()
+  await harness?.close()
 })
 
 /** What the balance panel must show for `data`, worked out here with the same sim-core. */
@@ -153,8 +94,7 @@ describe('thin path', () => {
     await page.evaluate('window.scrollTo(0, 0)')
     await page.waitForTimeout(500)
 
-    mkdirSync(dirname(SCREENSHOT), { recursive: true })
-    await page.screenshot({ path: SCREENSHOT, fullPage: true })
-    expect(pageErrors).toEqual([])
+    await page.screenshot({ path: screenshotPath('thin-path.png'), fullPage: true })
+    expect(harness.pageErrors).toEqual([])
   })
 })

@@ -1,14 +1,7 @@
 import { afterEach, describe, expect, it } from 'vitest'
-import { defineComponent, h } from 'vue'
-import { RouterView } from 'vue-router'
 import { enableAutoUnmount, flushPromises } from '@vue/test-utils'
-import { defaultScenario } from '@crackpoint/sim-core'
-import AppShell from '@/components/AppShell.vue'
-import BalancePanel from '@/components/BalancePanel.vue'
-import ScenarioForm from '@/components/ScenarioForm.vue'
 import { useScenarioStore } from '@/stores/scenario'
-import { useSessionStore } from '@/stores/session'
-import { mountApp } from './mount-app'
+import { mountEditor } from './mount-editor'
 
 enableAutoUnmount(afterEach)
 afterEach(() => localStorage.clear())
@@ -20,45 +13,6 @@ afterEach(() => localStorage.clear())
  * = 3.857 psi (1 psi = 6894.757 Pa, NIST SP 811) = 26.59 kPa. Full open adds k·x_max = 3500 N/m · 12.7 mm:
  * 173.45 N / 0.0048508 m² = 35 757 Pa = 5.186 psi.
  */
-const EDITOR = defineComponent({
-  setup() {
-    const store = useScenarioStore()
-    return () => h('div', [h(ScenarioForm), h(BalancePanel, { live: store.live })])
-  },
-})
-
-async function mountEditor() {
-  const mounted = await mountApp(RouterView, [
-    { path: '/', component: AppShell, children: [{ path: '', component: EDITOR }] },
-    { path: '/scenarios', name: 'scenarios', component: { render: () => null } },
-    { path: '/sign-in', name: 'sign-in', component: { render: () => null } },
-  ])
-  const session = useSessionStore()
-  session.user = {
-    id: 'u1',
-    email: 'engineer@harrowlane.example',
-    displayName: 'Shop engineer',
-    role: 'engineer',
-    unitSystem: 'us',
-    workspace: { id: 'w1', name: 'Harrow Lane Boostworks' },
-  }
-  const store = useScenarioStore()
-  const data = defaultScenario()
-  store.current = {
-    id: 's1',
-    name: 'Demo',
-    data,
-    version: 1,
-    ownerId: 'u1',
-    createdAt: '2025-01-01T00:00:00Z',
-    updatedAt: '2025-01-01T00:00:00Z',
-  }
-  store.draft = structuredClone(data)
-  store.draftName = 'Demo'
-  await flushPromises()
-  return mounted
-}
-
 describe('BalancePanel', () => {
   it('shows the crack boost of a known scenario and follows the unit switch', async () => {
     const { wrapper } = await mountEditor()

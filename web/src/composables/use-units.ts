@@ -1,6 +1,6 @@
 import { computed } from 'vue'
-import { formatQuantity, fromDisplay, toDisplay, unitSymbol, type Quantity } from '@crackpoint/sim-core'
 import { useSessionStore } from '@/stores/session'
+import { fieldFromDisplay, fieldToDisplay, fieldUnit, formatField, type FieldQuantity } from './field-units'
 
 /** Converts between SI (what the model and the API speak) and the signed-in user's unit system. */
 export function useUnits() {
@@ -8,9 +8,9 @@ export function useUnits() {
   const system = computed(() => session.unitSystem)
   return {
     system,
-    symbol: (quantity: Quantity) => unitSymbol(quantity, system.value),
-    toDisplay: (quantity: Quantity, si: number) => toDisplay(quantity, system.value, si),
-    fromDisplay: (quantity: Quantity, value: number) => fromDisplay(quantity, system.value, value),
-    format: (quantity: Quantity, si: number, digits?: number) => formatQuantity(quantity, system.value, si, digits),
+    symbol: (quantity: FieldQuantity) => fieldUnit(quantity, system.value).symbol,
+    toDisplay: (quantity: FieldQuantity, si: number) => fieldToDisplay(quantity, system.value, si),
+    fromDisplay: (quantity: FieldQuantity, value: number) => fieldFromDisplay(quantity, system.value, value),
+    format: (quantity: FieldQuantity, si: number, digits?: number) => formatField(quantity, system.value, si, digits),
   }
 }

@@ -1,18 +1,52 @@
-import { computed, ref, shallowRef } from 'vue'
+import { computed, ref, shallowRef, toRaw } from 'vue'
 import { defineStore } from 'pinia'
 import {
   computeBalance,
+  controlSchema,
+  downstreamSchema,
   parseScenario,
   setAtPath,
+  supplySchema,
+  wastegateAreas,
+  wastegateSchema,
   type BalanceResult,
+  type Control,
   type FieldIssue,
   type Scenario,
   type ScenarioInput,
+  type Supply,
+  type WastegateAreas,
 } from '@crackpoint/sim-core'
 import { ApiError } from '@/api/api-error'
 import { deepEqual } from '@/composables/deep-equal'
 import { scenariosApi } from '@/api/scenarios'
 import type { ScenarioRow } from '@/api/types'
+
+type Downstream = Scenario['exhaust']['downstream']
+
+/** sim-core's limit on nested springs. */
+export const MAX_SPRINGS = 3
+
+/**
+ * Starting values for an arrangement picked for the first time; the user edits them. Half duty and a
+ * 50 % bleed sit mid-range; 20 psi (137 895 Pa) is a common street boost target (common practice, no source).
+ */
+const CONTROL_STARTS: Readonly<Record<Control['kind'], unknown>> = {
+  none: { kind: 'none' },
+  'bottom-boost': { kind: 'bottom-boost' },
+  'top-supply': { kind: 'top-supply' },
+  both: { kind: 'both' },
+  'bleed-top': { kind: 'bleed-top', fraction: 0.5 },
+  'solenoid-3port': { kind: 'solenoid-3port', chamber: 'bottom', duty: 0.5 },
+  'solenoid-4port': { kind: 'solenoid-4port', duty: 0.5 },
+  'closed-loop': { kind: 'closed-loop', targetBoostPa: 137_895 },
+}
+
+/** A muffled dump: about 10 kPa behind the valve at 0.1 kg/s of gate flow (common practice, no source). */
+const RESTRICTION_START = 1e6
+
+/** An inner spring of 10 lbf seat and 10 lbf/in (44.48 N, 1751 N/m; common practice, no source). */
+const NESTED_SPRING_START = { from: 'seat', seatForceN: 44.48, rateNPerM: 1751 } as const
 
 export type LiveBalance = { ok: true; scenario: Scenario; balance: BalanceResult } | { ok: false; issues: FieldIssue[] }
 
@@ -53,6 +87,15 @@ export const useScenarioStore = defineStore('scenario', () => {
     return { ok: true, scenario: parsed.scenario, balance: computeBalance(parsed.scenario) }
   })
 
+  /**
+   * The wastegate's net areas from its own inputs, even while another section has a problem, so the areas
+   * picture and a bench-tested spring's seat force stay live.
+   */
+  const draftAreas = computed<WastegateAreas | null>(() => {
+    const parsed = wastegateSchema.safeParse(draft.value?.wastegate)
+    return parsed.success ? wastegateAreas(parsed.data) : null
+  })
+
   /** Problems by dotted scenario path, from the live check and from the last rejected save. */
   const issues = computed<Record<string, string>>(() => {
     const byPath: Record<string, string> = { ...fieldErrors.value }
@@ -90,6 +133,9 @@ export const useScenarioStore = defineStore('scenario', () => {
     conflict.value = false
     saveError.value = null
     fieldErrors.value = {}
+    remembered.control.clear()
+    remembered.supply.clear()
+    remembered.downstream.clear()
   }
 
   async function load(id: string): Promise<void> {
@@ -165,51 +211,117 @@ export const useScenarioStore = defineStore('scenario', () => {
     if (current.value) open(current.value)
   }
 
-  function setNumber(path: string, value: number): void {
-    if (!draft.value) return
-    draft.value = setAtPath(draft.value, path, value)
+  function clearFieldError(path: string): void {
     if (path in fieldErrors.value) {
       const { [path]: _answered, ...rest } = fieldErrors.value
       fieldErrors.value = rest
     }
   }
 
-  /** The four arrangements of the thin path; the top port needs a regulated supply, CO₂ the usual one. */
-  function setArrangement(kind: 'none' | 'bottom-boost' | 'top-supply' | 'both'): void {
+  function setNumber(path: string, value: number): void {
+    if (!draft.value) return
+    draft.value = setAtPath(draft.value, path, value)
+    clearFieldError(path)
+  }
+
+  /** An optional number: NaN (an emptied field) removes it, so the model falls back to its own rule. */
+  function setOptionalNumber(path: string, value: number): void {
+    if (!draft.value) return
+    if (!Number.isNaN(value)) {
+      setNumber(path, value)
+      return
+    }
+    const keys = path.split('.')
+    const last = keys.pop()
+    let node: unknown = draft.value
+    for (const key of keys) node = node !== null && typeof node === 'object' ? (node as Record<string, unknown>)[key] : undefined
+    if (last !== undefined && node !== null && typeof node === 'object') delete (node as Record<string, unknown>)[last]
+    clearFieldError(path)
+  }
+
+  /** Earlier settings of each kind, so switching an arrangement away and back keeps what was typed. */
+  const remembered = { control: new Map<string, Control>(), supply: new Map<string, Supply>(), downstream: new Map<string, Downstream>() }
+
+  function setArrangement(kind: Control['kind']): void {
     const d = draft.value
-    if (!d) return
-    d.control = { kind }
+    if (!d || d.control.kind === kind) return
+    remembered.control.set(d.control.kind, structuredClone(toRaw(d.control)) as Control)
+    d.control = remembered.control.get(kind) ?? controlSchema.parse(CONTROL_STARTS[kind])
+    // "Top port on a regulated supply" means a bottle or a tank; boost itself on the top stays a choice.
     if ((kind === 'top-supply' || kind === 'both') && d.supply.kind === 'boost') {
       setSupplyKind('co2')
     }
   }
 
-  function setSupplyKind(kind: 'boost' | 'co2' | 'compressor'): void {
+  function setControlOption(key: 'chamber' | 'bottomOnBoost', value: 'bottom' | 'top' | boolean): void {
+    const c = draft.value?.control
+    if (!c) return
+    if (key === 'chamber' && c.kind === 'solenoid-3port' && (value === 'bottom' || value === 'top')) c.chamber = value
+    if (key === 'bottomOnBoost' && c.kind === 'bleed-top' && typeof value === 'boolean') c.bottomOnBoost = value
+  }
+
+  function setSupplyKind(kind: Supply['kind']): void {
     const d = draft.value
     if (!d || d.supply.kind === kind) return
-    if (kind === 'boost') {
-      d.supply = { kind }
+    remembered.supply.set(d.supply.kind, structuredClone(toRaw(d.supply)) as Supply)
+    const earlier = remembered.supply.get(kind)
+    if (earlier) {
+      d.supply = earlier
       return
     }
     // A regulated supply keeps the setpoint the user already chose; 10 psi is only a starting value to edit.
     const setpoint = d.supply.kind === 'boost' ? 68_948 : d.supply.regulatorSetpointPa
-    d.supply = { kind, regulatorSetpointPa: setpoint }
+    d.supply = supplySchema.parse(kind === 'boost' ? { kind } : { kind, regulatorSetpointPa: setpoint })
+  }
+
+  function setDownstreamKind(kind: Downstream['kind']): void {
+    const e = draft.value?.exhaust
+    if (!e) return
+    const current = e.downstream ?? { kind: 'vented' }
+    if (current.kind === kind) return
+    remembered.downstream.set(current.kind, structuredClone(toRaw(current)) as Downstream)
+    e.downstream =
+      remembered.downstream.get(kind) ??
+      downstreamSchema.parse(kind === 'restricted' ? { kind, coefficientPaPerKg2S2: RESTRICTION_START } : { kind })
+  }
+
+  function setChoice(path: 'wastegate.actuatorKind', value: 'diaphragm' | 'piston'): void
+  function setChoice(path: 'exhaust.mode', value: 'ratio' | 'turbine'): void
+  function setChoice(path: string, value: string): void {
+    const d = draft.value
+    if (!d) return
+    if (path === 'wastegate.actuatorKind' && (value === 'diaphragm' || value === 'piston')) d.wastegate.actuatorKind = value
+    if (path === 'exhaust.mode' && (value === 'ratio' || value === 'turbine')) d.exhaust.mode = value
+  }
+
+  /** A nested spring goes inside the others; its force and rate add to theirs (MODEL.md §1). */
+  function addSpring(): void {
+    const d = draft.value
+    if (!d || d.springs.length >= MAX_SPRINGS) return
+    d.springs = [...d.springs, { ...NESTED_SPRING_START }]
+  }
+
+  function removeSpring(index: number): void {
+    const d = draft.value
+    if (!d || d.springs.length <= 1 || index < 0 || index >= d.springs.length) return
+    d.springs = d.springs.filter((_, i) => i !== index)
+    fieldErrors.value = Object.fromEntries(Object.entries(fieldErrors.value).filter(([path]) => !path.startsWith('springs.')))
   }
 
   /**
    * A seat-force spring and a bench-test spring are two ways to give the same preload:
    * F0 = p_bench · (A_p − A_s) (MODEL.md §1), so switching keeps the crack point where it was.
    */
-  function setSpringSource(from: 'seat' | 'bench'): void {
+  function setSpringSource(index: number, from: 'seat' | 'bench'): void {
     const d = draft.value
-    const spring = d?.springs[0]
+    const spring = d?.springs[index]
     if (!d || !spring || spring.from === from) return
-    const bottomM2 = live.value?.ok ? live.value.balance.areas.bottomM2 : Number.NaN
-    const first =
+    const bottomM2 = draftAreas.value?.bottomM2 ?? Number.NaN
+    const next =
       from === 'seat'
         ? { from, seatForceN: spring.from === 'bench' ? spring.benchCrackPressurePa * bottomM2 : Number.NaN, rateNPerM: spring.rateNPerM }
         : { from, benchCrackPressurePa: spring.from === 'seat' ? spring.seatForceN / bottomM2 : Number.NaN, rateNPerM: spring.rateNPerM }
-    d.springs = [first, ...d.springs.slice(1)]
+    d.springs = d.springs.map((s, i) => (i === index ? next : s))
   }
 
   return {
@@ -229,13 +341,21 @@ export const useScenarioStore = defineStore('scenario', () => {
     issues,
     dirty,
     fetchList,
+    open,
     load,
     create,
     save,
     discardEdits,
+    draftAreas,
     setNumber,
+    setOptionalNumber,
     setArrangement,
+    setControlOption,
     setSupplyKind,
+    setDownstreamKind,
+    setChoice,
+    addSpring,
+    removeSpring,
     setSpringSource,
   }
 })
