@@ -8,6 +8,7 @@ import type { Config } from './config.ts';
 import { AppError, errorMiddleware } from './errors/index.ts';
 import { createLogger } from './logger.ts';
 import { apiRoutes } from './routes/index.ts';
+import { PullRunner, type PullRunnerLike } from './services/pull/pull-runner.ts';
 import type { SweepQueue } from './services/sweeps.ts';
 
 export interface AppDeps {
@@ -15,6 +16,8 @@ export interface AppDeps {
   queue: SweepQueue;
   config: Config;
   logger?: Logger;
+  /** Computes pulls; made from the config when left out (its idle threads never hold the process open). */
+  pulls?: PullRunnerLike;
 }
 
 /** A scenario is a few kilobytes and a sweep at most 3 × 1000 values; anything far larger is a mistake. */
@@ -23,6 +26,7 @@ const JSON_LIMIT = '1mb';
 export function createApp(deps: AppDeps): Express {
   const { config, knex, queue } = deps;
   const logger = deps.logger ?? createLogger(config);
+  const pulls = deps.pulls ?? new PullRunner({ threads: config.pullThreads, timeLimitMs: config.pullTimeLimitMs });
 
   const app = express();
   app.disable('x-powered-by');
@@ -40,7 +44,7 @@ export function createApp(deps: AppDeps): Express {
   );
 
   app.use('/api', express.json({ limit: JSON_LIMIT }));
-  app.use('/api', apiRoutes({ knex, queue, config, logger }));
+  app.use('/api', apiRoutes({ knex, queue, config, logger, pulls }));
 
   const indexHtml = join(config.webDist, 'index.html');
   if (existsSync(indexHtml)) {

@@ -46,6 +46,10 @@ const envSchema = z
     SIGN_IN_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(10_000).default(10),
     SIGN_IN_ADDRESS_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(100_000).default(60),
     REGISTER_LIMIT_PER_HOUR: z.coerce.number().int().min(1).max(100_000).default(10),
+    PULL_THREADS: z.coerce.number().int().min(1).max(64).default(2),
+    PULL_TIME_LIMIT_MS: z.coerce.number().int().min(10).max(600_000).default(15_000),
+    PULL_MAX_STEPS: z.coerce.number().int().min(100).max(10_000_000).default(200_000),
+    PULL_MAX_SAMPLES: z.coerce.number().int().min(2).max(1_000_000).default(3001),
     CHANGE_PASSWORD_LIMIT_PER_15_MINUTES: z.coerce.number().int().min(1).max(10_000).default(10),
   })
   .superRefine((env, ctx) => {
@@ -75,6 +79,14 @@ export interface Config {
   readonly registerLimitPerHour: number;
   /** Failed password changes per member and quarter hour. */
   readonly changePasswordLimitPer15Minutes: number;
+  /** Threads that compute pulls for `POST /api/scenarios/:id/pull`. */
+  readonly pullThreads: number;
+  /** A pull request is answered within this, waiting for a thread included. */
+  readonly pullTimeLimitMs: number;
+  /** Integrator steps one pull may take here (a scenario asking for more is run with this many). */
+  readonly pullMaxSteps: number;
+  /** Samples of a pull's series; a longer pull or a finer sampling is refused. */
+  readonly pullMaxSamples: number;
 }
 
 export class ConfigError extends Error {
@@ -109,5 +121,9 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     signInAddressLimitPerMinute: e.SIGN_IN_ADDRESS_LIMIT_PER_MINUTE,
     registerLimitPerHour: e.REGISTER_LIMIT_PER_HOUR,
     changePasswordLimitPer15Minutes: e.CHANGE_PASSWORD_LIMIT_PER_15_MINUTES,
+    pullThreads: e.PULL_THREADS,
+    pullTimeLimitMs: e.PULL_TIME_LIMIT_MS,
+    pullMaxSteps: e.PULL_MAX_STEPS,
+    pullMaxSamples: e.PULL_MAX_SAMPLES,
   });
 }

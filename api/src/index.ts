@@ -11,4 +11,5 @@ export {
   type SeedResult,
 } from './seed/seed-demo-workspace.ts';
 export type { SweepQueue } from './services/sweeps.ts';
+export { PullRunner, PullTimeoutError, PullFailedError, type PullRunnerLike, type PullRunnerOptions } from './services/pull/pull-runner.ts';
 export { routeTable, allows, ROLES, type AnyRoute, type Access, type Scope } from './routes/index.ts';

@@ -5,6 +5,7 @@ import { createApp } from './app.ts';
 import { loadConfig } from './config.ts';
 import { createKnex } from './db.ts';
 import { createLogger } from './logger.ts';
+import { PullRunner } from './services/pull/pull-runner.ts';
 
 const config = loadConfig();
 const logger = createLogger(config);
@@ -17,7 +18,8 @@ redis.on('error', (error) => logger.warn({ err: error }, 'redis connection error
 const queue = new Queue<SweepChunkJob>(SWEEP_QUEUE, { connection: redis });
 queue.on('error', (error) => logger.warn({ err: error }, 'sweep queue error'));
 
-const app = createApp({ knex, queue, config, logger });
+const pulls = new PullRunner({ threads: config.pullThreads, timeLimitMs: config.pullTimeLimitMs });
+const app = createApp({ knex, queue, config, logger, pulls });
 const server = app.listen(config.port, config.host, () => {
   logger.info({ host: config.host, port: config.port }, 'Crackpoint API listening');
 });
@@ -38,6 +40,7 @@ async function shutdown(signal: string): Promise<void> {
   }, 15_000);
   forced.unref();
   await new Promise<void>((resolve) => server.close(() => resolve()));
+  await pulls.close();
   await queue.close().catch((error: unknown) => logger.warn({ err: error }, 'closing the queue failed'));
   await redis.quit().catch(() => redis.disconnect());
   await knex.destroy();

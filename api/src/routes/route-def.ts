@@ -4,6 +4,7 @@ import type { z } from 'zod';
 import type { Config } from '../config.ts';
 import { USER_ROLES, type UserRole } from '../models/index.ts';
 import type { AuthContext } from '../services/auth.ts';
+import type { PullRunnerLike } from '../services/pull/pull-runner.ts';
 import type { SweepQueue } from '../services/sweeps.ts';
 
 /** Everything a handler may hand on to a service. */
@@ -12,6 +13,7 @@ export interface ApiDeps {
   config: Config;
   queue: SweepQueue;
   logger: Logger;
+  pulls: PullRunnerLike;
 }
 
 export type HttpMethod = 'get' | 'post' | 'patch' | 'put' | 'delete';

@@ -6,7 +6,11 @@ import {
   scenarioResponseSchema,
   updateScenarioBodySchema,
 } from '../schemas/scenarios.ts';
-import { createScenario, deleteScenario, getScenario, listScenarios, updateScenario } from '../services/scenarios.ts';
+import { balanceResponseSchema } from '../schemas/balance.ts';
+import { cloneScenarioBodySchema, emptyBodySchema, pullResponseSchema } from '../schemas/pulls.ts';
+import { balanceOfScenario } from '../services/balance.ts';
+import { runScenarioPull } from '../services/pulls.ts';
+import { cloneScenario, createScenario, deleteScenario, getScenario, listScenarios, updateScenario } from '../services/scenarios.ts';
 import { defineRoute, ROLES } from './route-def.ts';
 
 export const scenarioRoutes = [
@@ -77,5 +81,53 @@ export const scenarioRoutes = [
     handler: async ({ deps, auth, params }) => {
       await deleteScenario(deps.knex, auth, params.id);
     },
+  }),
+  defineRoute({
+    id: 'cloneScenario',
+    method: 'post',
+    path: '/scenarios/:id/clone',
+    summary: 'Copy a scenario (its data and library sources) into a new one the caller owns',
+    tag: 'Scenarios',
+    access: ROLES.compute,
+    scope: 'object',
+    resource: 'Scenario',
+    params: idParamsSchema,
+    body: cloneScenarioBodySchema,
+    bodyOptional: true,
+    success: { status: 201, description: 'The copy', schema: scenarioResponseSchema },
+    handler: async ({ deps, auth, params, body }) => ({ scenario: await cloneScenario(deps.knex, auth, params.id, body ?? {}) }),
+  }),
+  defineRoute({
+    id: 'balanceScenario',
+    method: 'post',
+    path: '/scenarios/:id/balance',
+    summary: 'Static force balance (crack and full-open boost) of a stored scenario',
+    tag: 'Scenarios',
+    // Every role, as for POST /balance: instant, stores nothing, counts against no quota.
+    access: ROLES.everyone,
+    scope: 'object',
+    resource: 'Scenario',
+    params: idParamsSchema,
+    body: emptyBodySchema,
+    bodyOptional: true,
+    success: { status: 200, description: 'The balance', schema: balanceResponseSchema },
+    errors: [422],
+    handler: ({ deps, auth, params }) => balanceOfScenario(deps.knex, auth.workspaceId, params.id),
+  }),
+  defineRoute({
+    id: 'pullScenario',
+    method: 'post',
+    path: '/scenarios/:id/pull',
+    summary: 'One dynamic wide-open-throttle pull of a stored scenario, computed while the request waits (bounded in size and time)',
+    tag: 'Scenarios',
+    access: ROLES.compute,
+    scope: 'object',
+    resource: 'Scenario',
+    params: idParamsSchema,
+    body: emptyBodySchema,
+    bodyOptional: true,
+    success: { status: 200, description: 'The pull: series over time, metrics, flags, solver statistics and notes', schema: pullResponseSchema },
+    errors: [422, 503],
+    handler: ({ deps, auth, params }) => runScenarioPull(deps, auth.workspaceId, params.id),
   }),
 ];

@@ -163,3 +163,32 @@ export async function deleteScenario(knex: Knex, auth: AuthContext, id: string):
     });
   });
 }
+
+const NAME_MAX = 200;
+
+/** A copy of a scenario for the caller to own, with the same library sources, starting at version 1. */
+export async function cloneScenario(knex: Knex, auth: AuthContext, id: string, input: { name?: string }): Promise<ScenarioRow> {
+  return knex.transaction(async (trx) => {
+    const original = await findScenario(trx, auth.workspaceId, id);
+    const sources = sourcesOf(original, (await springSourcesOf(trx, [id])).get(id) ?? []);
+    const suffix = ' (copy)';
+    const name = input.name ?? `${original.name.slice(0, NAME_MAX - suffix.length)}${suffix}`;
+    const copy = await Scenario.query(trx).insertAndFetch({
+      workspaceId: auth.workspaceId,
+      ownerId: auth.userId,
+      name,
+      data: original.data,
+      ...sourceColumns(sources),
+    });
+    await writeSpringSources(trx, copy, sources.springIds);
+    await recordAudit(trx, {
+      workspaceId: auth.workspaceId,
+      actorId: auth.userId,
+      action: 'clone',
+      entityType: 'scenario',
+      entityId: copy.id,
+      changes: { clonedFrom: { to: original.id }, name: { to: name } },
+    });
+    return presentScenario(copy, sources.springIds);
+  });
+}

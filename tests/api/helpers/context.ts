@@ -1,5 +1,5 @@
 import { randomUUID } from 'node:crypto';
-import { createApp, createKnex, loadConfig, type Config } from '@crackpoint/api';
+import { createApp, createKnex, loadConfig, PullRunner, type Config } from '@crackpoint/api';
 import { Queue } from 'bullmq';
 import bcrypt from 'bcryptjs';
 import type { Express } from 'express';
@@ -30,6 +30,7 @@ export interface TestContext {
   /** A queue of this test file's own, so files never see each other's jobs. */
   queue: Queue;
   queueName: string;
+  pulls: PullRunner;
   app: Express;
   close(): Promise<void>;
 }
@@ -44,15 +45,18 @@ export function createTestContext(env: Record<string, string> = {}): TestContext
   const redis = new Redis(config.redisUrl, { maxRetriesPerRequest: null });
   const queueName = `sweep-chunks-test-${randomUUID()}`;
   const queue = new Queue(queueName, { connection: redis });
-  const app = createApp({ knex, queue, config });
+  const pulls = new PullRunner({ threads: config.pullThreads, timeLimitMs: config.pullTimeLimitMs });
+  const app = createApp({ knex, queue, config, pulls });
   return {
     config,
     knex,
     redis,
     queue,
     queueName,
+    pulls,
     app,
     async close() {
+      await pulls.close();
       await queue.obliterate({ force: true });
       await queue.close();
       await redis.quit();

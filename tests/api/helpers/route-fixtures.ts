@@ -72,6 +72,12 @@ export const routeFixtures: Record<string, RouteFixture> = {
     prepare: async ({ world, target, role }) => ({ path: `/scenarios/${await world.scenario(target, authorOf(role))}` }),
   },
 
+  cloneScenario: {
+    prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}/clone`, body: {} }),
+  },
+  balanceScenario: { prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}/balance` }) },
+  pullScenario: { prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}/pull` }) },
+
   computeBalance: { prepare: async () => ({ path: '/balance', body: { scenario: defaultScenario() } }) },
 
   createSweep: {
