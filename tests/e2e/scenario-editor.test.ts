@@ -35,6 +35,7 @@ describe('scenario editor', () => {
     await page.getByTestId('springs.1.benchCrackPressurePa').locator('input').fill('10')
     await expect.poll(() => page.getByTestId('bench-seat-force-1').textContent()).toMatch(/seat force of \d/)
 
+    await page.getByTestId('areas-picture').screenshot({ path: screenshotPath('areas-picture.png') })
     await page.evaluate('window.scrollTo(0, 0)')
     await page.screenshot({ path: screenshotPath('scenario-editor-1280.png'), fullPage: true })
 
