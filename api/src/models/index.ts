@@ -10,3 +10,8 @@ export { LibraryItem } from './library-item.ts';
 export { Wastegate, Spring, Turbo, Engine, Supply } from './library-items.ts';
 export { ScenarioSpring } from './scenario-spring.ts';
 export { AuditEntry, type AuditAction, type AuditChange } from './audit-entry.ts';
+export { Invitation } from './invitation.ts';
+export { ShareLink, SHARE_TARGETS, type ShareTarget } from './share-link.ts';
+export { Upload, UPLOAD_KINDS, type UploadKind } from './upload.ts';
+export { UsageEntry, USAGE_KINDS, type UsageKind } from './usage-entry.ts';
+export { Quota } from './quota.ts';
