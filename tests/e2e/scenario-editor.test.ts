@@ -27,7 +27,7 @@ describe('scenario editor', () => {
     await page.getByTestId('crack-boost').waitFor()
 
     await page.getByTestId('arrangement-top-supply').locator('input').check()
-    await page.getByTestId('gas-caution').waitFor()
+    await page.getByTestId('gas-caution').first().waitFor()
     await expect.poll(() => page.getByTestId('supply.regulatorSetpointPa').isVisible()).toBe(true)
 
     await page.getByTestId('add-spring').click()
@@ -36,6 +36,11 @@ describe('scenario editor', () => {
     await expect.poll(() => page.getByTestId('bench-seat-force-1').textContent()).toMatch(/seat force of \d/)
 
     await page.getByTestId('areas-picture').screenshot({ path: screenshotPath('areas-picture.png') })
+    await page.locator('[data-testid="ratio-plot"] .main-svg').first().waitFor()
+    // Tall enough that the balance column needs no scrolling of its own for the picture.
+    await page.setViewportSize({ width: 1280, height: 1500 })
+    await page.locator('.balance-panel').screenshot({ path: screenshotPath('balance-panel.png') })
+    await page.setViewportSize({ width: 1280, height: 900 })
     await page.evaluate('window.scrollTo(0, 0)')
     await page.screenshot({ path: screenshotPath('scenario-editor-1280.png'), fullPage: true })
 
