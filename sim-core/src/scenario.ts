@@ -128,9 +128,16 @@ export const controlSchema = z.discriminatedUnion(
       targetBoostPa: positive(1_000_000),
       /** Boost target by rpm; between points it is interpolated, outside held. */
       targetByRpm: z.array(z.strictObject({ rpm: positive(20_000), boostPa: nonNegative(1_000_000) })).max(32).optional(),
-      proportionalPerPa: nonNegative().default(2e-5),
-      integralPerPaS: nonNegative().default(1e-4),
-      derivativeSPerPa: nonNegative().default(0),
+      /**
+       * PID gains, duty per Pa of boost error (P), per Pa·s (I) and per Pa/s of boost rise (D, on boost itself).
+       * Tuned on the default scenario with a top port on boost: K_p 0.69 per psi, T_i = K_p/K_i ≈ 0.67 s,
+       * T_d = K_d/K_p = 0.2 s. The derivative lets the valve crack while boost is still climbing fast, which a
+       * spooling turbo needs: without it that pull overshoots a 12 psi target by over 3 psi and hunts
+       * (test/pull/control-arrangements.test.ts).
+       */
+      proportionalPerPa: nonNegative().default(1e-4),
+      integralPerPaS: nonNegative().default(1.5e-4),
+      derivativeSPerPa: nonNegative().default(2e-5),
       dutyMin: fraction().default(0),
       dutyMax: fraction().default(1),
       solenoidDiameterM: positive(0.01).default(0.0015),

@@ -79,6 +79,9 @@ export interface PullOutputs {
   targetBoostPa: number
 }
 
+/** Duty past a limit over which the closed loop's integral fades out (conditional integration, see evaluate). */
+export const INTEGRAL_FADE_DUTY = 0.02
+
 /** The stiffness, C_d·A·√(R·T)/V, above which a chamber is treated as quasi-static (MODEL.md §4a), 1/s. */
 export const QUASI_STATIC_ABOVE_PER_S = 50
 
@@ -235,10 +238,6 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
           targetKeys: c.targetByRpm?.map((p) => p.rpm) ?? null,
           targetValues: c.targetByRpm?.map((p) => p.boostPa) ?? null,
           target: c.targetBoostPa,
-          // Back-calculation anti-windup, dI/dt = e + (d_sat − d)/(K_i·T_t), with the tracking time T_t = T_i = K_p/K_i
-          // (0.1 s for a pure integral controller); 1/(K_i·T_t) is kept.
-          tracking:
-            c.integralPerPaS <= 0 ? 0 : c.proportionalPerPa > 0 ? 1 / c.proportionalPerPa : 1 / (0.1 * c.integralPerPaS),
         }
       : null
   if (loop && loop.dutyMax < loop.dutyMin) throw bad('control.dutyMax', 'must be at least control.dutyMin')
@@ -483,7 +482,8 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       deliveredAbs = pAmb + reg
     }
 
-    // Solenoid duty: fixed, or the closed loop's PID on boost error with back-calculation anti-windup.
+    // Solenoid duty: fixed, or the closed loop's PID on boost error, its derivative on boost itself (dp_im/dt of the
+    // model, so a step in the target does not kick the solenoid).
     let duty = fixedDuty
     let target = 0
     let dI = 0
@@ -492,7 +492,13 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       const err = target - (pim - pAmb)
       const raw = loop.kp * err + loop.ki * y[integralI]! - loop.kd * dpim
       duty = raw < loop.dutyMin ? loop.dutyMin : raw > loop.dutyMax ? loop.dutyMax : raw
-      dI = err + loop.tracking * (duty - raw)
+      // Anti-windup by conditional integration: the integral stops while the command is past a duty limit. While the
+      // turbo spools the solenoid sits at its limit with the error large for a second or more; back-calculation would
+      // carry the integral to that limit by the time boost arrives (MODEL.md §4 Control). Fading over the last
+      // INTEGRAL_FADE_DUTY keeps the right-hand side continuous, which the step-size control needs.
+      const beyond = raw - duty
+      const fade = 1 - (beyond < 0 ? -beyond : beyond) / INTEGRAL_FADE_DUTY
+      dI = fade > 0 ? err * fade : 0
     }
 
     // Chambers.
