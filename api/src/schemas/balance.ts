@@ -1,3 +1,4 @@
+import { scenarioSchema } from '@crackpoint/sim-core';
 import { z } from 'zod';
 
 /** sim-core's BalanceResult as the API sends it; sim-core computes it, this only describes it. */
@@ -46,7 +47,7 @@ export const balanceResultSchema = z.object({
     .nullable(),
 });
 
-/** `scenario` stays unknown here: sim-core's parseScenario names every field under `scenario.` itself. */
-export const balanceBodySchema = z.strictObject({ scenario: z.unknown() });
+/** The scenario as sim-core's own schema has it. */
+export const balanceBodySchema = z.strictObject({ scenario: scenarioSchema });
 
 export const balanceResponseSchema = z.object({ balance: balanceResultSchema });

@@ -1,3 +1,4 @@
+import { scenarioSchema } from '@crackpoint/sim-core';
 import { z } from 'zod';
 import { uuidSchema } from './common.ts';
 import { sortOrderSchema, versionSchema } from './library.ts';
@@ -23,19 +24,19 @@ export const scenarioSourcesInputSchema = z.strictObject({
 export type ScenarioSourcesInput = z.output<typeof scenarioSourcesInputSchema>;
 
 /**
- * `data` stays `unknown` here: sim-core's parseScenario owns what a scenario is and names every
- * field under `data.` itself.
+ * `data` is sim-core's own scenario schema, which owns what a scenario is; a full scenario or none (the
+ * default), never merged with defaults.
  */
 export const createScenarioBodySchema = z.strictObject({
   name: nameSchema,
-  data: z.unknown().optional(),
+  data: scenarioSchema.optional(),
   sources: scenarioSourcesInputSchema.optional(),
 });
 export type CreateScenarioBody = z.output<typeof createScenarioBodySchema>;
 
 export const updateScenarioBodySchema = z.strictObject({
   name: nameSchema.optional(),
-  data: z.unknown().optional(),
+  data: scenarioSchema.optional(),
   sources: scenarioSourcesInputSchema.optional(),
   version: versionSchema,
 });
@@ -66,7 +67,7 @@ export type ScenarioSources = z.infer<typeof scenarioSourcesSchema>;
 export const scenarioRowSchema = z.object({
   id: z.uuid(),
   name: z.string(),
-  data: z.unknown(),
+  data: scenarioSchema,
   version: z.number().int(),
   ownerId: z.uuid().nullable(),
   sources: scenarioSourcesSchema,

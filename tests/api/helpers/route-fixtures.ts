@@ -60,11 +60,16 @@ export const routeFixtures: Record<string, RouteFixture> = {
 
   listScenarios: { prepare: async () => ({ path: '/scenarios', query: { limit: 200 } }) },
   getScenario: { prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}` }) },
-  createScenario: { prepare: async () => ({ path: '/scenarios', body: { name: 'Matrix scenario' } }) },
+  createScenario: {
+    prepare: async ({ world, target }) => ({
+      path: '/scenarios',
+      body: { name: 'Matrix scenario', data: defaultScenario(), sources: { springIds: [await world.part(target, 'springs')] } },
+    }),
+  },
   updateScenario: {
     prepare: async ({ world, target, role }) => ({
       path: `/scenarios/${await world.scenario(target, authorOf(role))}`,
-      body: { name: 'Matrix rename', version: 1 },
+      body: { name: 'Matrix rename', data: defaultScenario(), version: 1 },
     }),
   },
 
