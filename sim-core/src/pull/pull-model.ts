@@ -1,4 +1,4 @@
-import { co2BottleState, co2SaturatedLiquidDensityKgM3, co2SaturatedVapourDensityKgM3, co2SaturationPressurePa, CO2_CRITICAL } from '../co2.ts'
+import { co2BottlePressurePa, co2SaturatedLiquidDensityKgM3, co2SaturatedVapourDensityKgM3, co2SaturationPressurePa, CO2_CRITICAL } from '../co2.ts'
 import { compressorConstants } from '../compressor.ts'
 import { interpolateTable } from '../engine.ts'
 import { AIR } from '../gas.ts'
@@ -117,16 +117,19 @@ export interface PullModel {
 
 const bad = (path: string, message: string) => new RangeError(`${path} ${message}`)
 
-/** Pressure of a CO₂ bottle as its contents are drawn: the saturation pressure while liquid remains. */
+/**
+ * Pressure of a CO₂ bottle as its contents are drawn, for the time step: the saturation pressure while liquid
+ * remains, else the pressure alone from co2.ts (the phase split and warning text of co2BottleState are for reports).
+ */
 function bottlePressureFunction(volumeM3: number, temperatureK: number): (massKg: number) => number {
+  const pressure = (m: number) => co2BottlePressurePa({ volumeM3, massKg: Math.max(m, 1e-9), temperatureK })
   if (temperatureK < CO2_CRITICAL.temperatureK) {
     const pSat = co2SaturationPressurePa(temperatureK)
     const lightest = co2SaturatedVapourDensityKgM3(temperatureK) * volumeM3
     const densest = co2SaturatedLiquidDensityKgM3(temperatureK) * volumeM3
-    return (m) =>
-      m >= lightest && m <= densest ? pSat : co2BottleState({ volumeM3, massKg: Math.max(m, 1e-9), temperatureK }).pressurePa
+    return (m) => (m >= lightest && m <= densest ? pSat : pressure(m))
   }
-  return (m) => co2BottleState({ volumeM3, massKg: Math.max(m, 1e-9), temperatureK }).pressurePa
+  return pressure
 }
 
 export function buildPullModel(s: Scenario, options: PullModelOptions = {}): PullModel {
@@ -207,7 +210,7 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   let cutOutAbs = 0
   if (supply.kind === 'co2') {
     try {
-      co2BottleState({ volumeM3: supply.bottleVolumeM3, massKg: supply.fillMassKg, temperatureK: supply.bottleTemperatureK })
+      co2BottlePressurePa({ volumeM3: supply.bottleVolumeM3, massKg: supply.fillMassKg, temperatureK: supply.bottleTemperatureK })
     } catch (error) {
       throw bad('supply.fillMassKg', `is not a possible fill: ${(error as Error).message}`)
     }

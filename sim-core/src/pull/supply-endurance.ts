@@ -1,4 +1,4 @@
-import { co2BottleState } from '../co2.ts'
+import { co2BottlePressurePa } from '../co2.ts'
 
 /**
  * How long a supply holds its setpoint over repeated pulls (MODEL.md §4 Supplies, §5): pulls per CO₂ bottle,
@@ -16,7 +16,7 @@ export interface Co2BottleSpec {
  * saturation pressure until it is gone, then the gas pressure falls with the mass left.
  */
 export function co2MinimumUsableMassKg(bottle: Co2BottleSpec, minimumPa: number): number {
-  const pressure = (m: number) => co2BottleState({ volumeM3: bottle.volumeM3, massKg: m, temperatureK: bottle.temperatureK }).pressurePa
+  const pressure = (m: number) => co2BottlePressurePa({ volumeM3: bottle.volumeM3, massKg: m, temperatureK: bottle.temperatureK })
   if (pressure(bottle.fillMassKg) < minimumPa) return bottle.fillMassKg
   let lo = 1e-9 * bottle.fillMassKg
   let hi = bottle.fillMassKg
