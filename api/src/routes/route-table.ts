@@ -2,6 +2,7 @@ import { authRoutes } from './auth.ts';
 import { balanceRoutes } from './balance.ts';
 import { healthRoutes } from './health.ts';
 import { libraryRoutes } from './library.ts';
+import { openApiRoutes } from './openapi.ts';
 import type { AnyRoute } from './route-def.ts';
 import { scenarioRoutes } from './scenarios.ts';
 import { sweepRoutes } from './sweeps.ts';
@@ -12,6 +13,7 @@ import { sweepRoutes } from './sweeps.ts';
  */
 export const routeTable: readonly AnyRoute[] = [
   ...healthRoutes,
+  ...openApiRoutes,
   ...authRoutes,
   ...scenarioRoutes,
   ...balanceRoutes,

@@ -37,6 +37,7 @@ const authorOf = (role: Role): Role => ((ROLE_SETS.compute as readonly Role[]).i
 
 export const routeFixtures: Record<string, RouteFixture> = {
   getHealth: { prepare: async () => ({ path: '/health' }) },
+  getOpenApi: { prepare: async () => ({ path: '/openapi.json' }) },
   signIn: {
     prepare: async ({ caller, role }) => ({ path: '/auth/sign-in', body: { email: caller.members[role].email, password: TEST_PASSWORD } }),
   },
