@@ -109,8 +109,11 @@ export interface Co2BottleState {
 const MPA = 1e6
 const fmt = (x: number, places: number) => x.toFixed(places)
 
-/** Liquid CO₂ is densest at its triple point (Span & Wagner eq. 3.14 there, about 1178 kg/m³). */
-const DENSEST_KG_M3 = co2SaturatedLiquidDensityKgM3(CO2_TRIPLE_POINT_K)
+/**
+ * Liquid CO₂ is densest at its triple point (Span & Wagner eq. 3.14 there, about 1178 kg/m³): no bottle can hold
+ * more than this per cubic metre, whatever its temperature.
+ */
+export const CO2_DENSEST_LIQUID_KG_M3 = co2SaturatedLiquidDensityKgM3(CO2_TRIPLE_POINT_K)
 
 /** The rise of bottle pressure over the next 10 K at the fill density, for the warning. */
 function riseOver10K(densityKgM3: number, temperatureK: number): number {
@@ -134,10 +137,10 @@ function checkBottle({ volumeM3, massKg, temperatureK }: Co2BottleInput): number
     throw new RangeError(`a CO₂ bottle at ${temperatureK} K is below the triple point ${CO2_TRIPLE_POINT_K} K (solid CO₂)`)
   }
   const rho = massKg / volumeM3
-  if (rho > DENSEST_KG_M3) {
+  if (rho > CO2_DENSEST_LIQUID_KG_M3) {
     throw new RangeError(
       `${massKg} kg of CO₂ cannot fit in ${volumeM3 * 1000} L: ${fmt(rho, 0)} kg/m³ is denser than liquid CO₂ ever is ` +
-        `(${fmt(DENSEST_KG_M3, 0)} kg/m³ at the triple point)`,
+        `(${fmt(CO2_DENSEST_LIQUID_KG_M3, 0)} kg/m³ at the triple point)`,
     )
   }
   return rho

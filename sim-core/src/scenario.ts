@@ -1,4 +1,5 @@
 import { z } from 'zod'
+import { CO2_DENSEST_LIQUID_KG_M3 } from './co2.ts'
 
 /**
  * The scenario: every input of the model, SI, with its range and default. Pressures whose name ends in
@@ -22,6 +23,25 @@ function num({ min, max, minExclusive = false }: Bound = {}) {
   if (max !== undefined) s = s.lte(max, { error: `must be at most ${max}` })
   return s
 }
+/** A section (an object of fields) with the same kind of messages: "is required", "must be an object". */
+function section<Shape extends z.core.$ZodLooseShape>(shape: Shape) {
+  return z.strictObject(shape, {
+    error: (i) => (i.code !== 'invalid_type' ? undefined : i.input === undefined ? 'is required' : 'must be an object'),
+  })
+}
+/** A list with the same kind of messages: "is required", "must be a list". */
+function list<Item extends z.ZodType>(item: Item) {
+  return z.array(item, { error: (i) => (i.input === undefined ? 'is required' : 'must be a list') })
+}
+/** One of several named choices: "is required", or the choices the field takes. */
+function choice<const Values extends readonly [string, ...string[]]>(values: Values) {
+  const named = values.map((v) => `"${v}"`).join(', ')
+  return z.enum(values, { error: (i) => (i.input === undefined ? 'is required' : `must be one of ${named}`) })
+}
+/** The message of a section chosen by its `kind` (or `from`): "is required" when it is left out. */
+const oneOf = (message: string) => ({ error: (i: { input?: unknown }) => (i.input === undefined ? 'is required' : message) })
+const flag = () => z.boolean({ error: (i) => (i.input === undefined ? 'is required' : 'must be true or false') })
+
 const positive = (max?: number) => num({ min: 0, minExclusive: true, ...(max === undefined ? {} : { max }) })
 const nonNegative = (max?: number) => num({ min: 0, ...(max === undefined ? {} : { max }) })
 const fraction = () => num({ min: 0, max: 1 })
@@ -32,102 +52,102 @@ const integer = (min: number, max: number) =>
     .gte(min, { error: `must be at least ${min}` })
     .lte(max, { error: `must be at most ${max}` })
 
-export const ambientSchema = z.strictObject({
+export const ambientSchema = section({
   pressurePa: num({ min: 50_000, max: 110_000 }).default(101_325), // sea level to high altitude, absolute
   temperatureK: num({ min: 230, max: 330 }).default(298.15),
 })
 
-export const wastegateSchema = z
-  .strictObject({
-    count: integer(1, 4).default(1),
-    valveDiameterM: positive(0.1),
-    shaftDiameterM: positive(0.05),
-    /** Piston bore, or the effective diameter of a diaphragm. */
-    actuatorDiameterM: positive(0.2),
-    actuatorKind: z.enum(['diaphragm', 'piston']).default('diaphragm'),
-    /** Net-area overrides (designs differ in where the shaft passes); an override wins. */
-    valveBackAreaM2: positive(0.01).optional(),
-    bottomAreaM2: positive(0.03).optional(),
-    topAreaM2: positive(0.03).optional(),
-    maxLiftM: positive(0.05),
-    movingMassKg: positive(5).default(0.15),
-    dampingRatio: nonNegative(5).default(0.3),
-    valveDischargeCoefficient: positive(1).default(0.7),
-    topChamberVolumeM3: positive(0.001).default(60e-6),
-    bottomChamberVolumeM3: positive(0.001).default(25e-6),
-    /** Port and vent bore of the actuator fittings. */
-    portDiameterM: positive(0.02).default(0.001),
-    portDischargeCoefficient: positive(1).default(0.7),
-    /** Lift above which the valve counts as cracked (0.005 in). */
-    crackThresholdM: positive(0.005).default(0.000127),
-  })
-  .superRefine((w, ctx) => {
-    if (w.valveDiameterM <= w.shaftDiameterM) {
-      ctx.addIssue({ code: 'custom', path: ['valveDiameterM'], message: 'must be larger than wastegate.shaftDiameterM' })
-    }
-    if (w.actuatorDiameterM <= w.shaftDiameterM) {
-      ctx.addIssue({ code: 'custom', path: ['actuatorDiameterM'], message: 'must be larger than wastegate.shaftDiameterM' })
-    }
-  })
+export const wastegateSchema = section({
+  count: integer(1, 4).default(1),
+  valveDiameterM: positive(0.1),
+  shaftDiameterM: positive(0.05),
+  /** Piston bore, or the effective diameter of a diaphragm. */
+  actuatorDiameterM: positive(0.2),
+  actuatorKind: choice(['diaphragm', 'piston']).default('diaphragm'),
+  /** Net-area overrides (designs differ in where the shaft passes); an override wins. */
+  valveBackAreaM2: positive(0.01).optional(),
+  bottomAreaM2: positive(0.03).optional(),
+  topAreaM2: positive(0.03).optional(),
+  maxLiftM: positive(0.05),
+  movingMassKg: positive(5).default(0.15),
+  dampingRatio: nonNegative(5).default(0.3),
+  valveDischargeCoefficient: positive(1).default(0.7),
+  topChamberVolumeM3: positive(0.001).default(60e-6),
+  bottomChamberVolumeM3: positive(0.001).default(25e-6),
+  /** Port and vent bore of the actuator fittings. */
+  portDiameterM: positive(0.02).default(0.001),
+  portDischargeCoefficient: positive(1).default(0.7),
+  /** Lift above which the valve counts as cracked (0.005 in). */
+  crackThresholdM: positive(0.005).default(0.000127),
+}).superRefine((w, ctx) => {
+  if (w.valveDiameterM <= w.shaftDiameterM) {
+    ctx.addIssue({ code: 'custom', path: ['valveDiameterM'], message: 'must be larger than wastegate.shaftDiameterM' })
+  }
+  if (w.actuatorDiameterM <= w.shaftDiameterM) {
+    ctx.addIssue({ code: 'custom', path: ['actuatorDiameterM'], message: 'must be larger than wastegate.shaftDiameterM' })
+  }
+})
 
 export const springSchema = z.discriminatedUnion(
   'from',
   [
-    z.strictObject({
+    section({
       from: z.literal('seat'),
       /** Preload at the installed height, valve closed. */
       seatForceN: nonNegative(5000),
       rateNPerM: nonNegative(500_000),
     }),
-    z.strictObject({
+    section({
       from: z.literal('bench'),
       /** Gauge pressure on the bottom port that just lifts the valve on the bench, no exhaust pressure. */
       benchCrackPressurePa: positive(1_000_000),
       rateNPerM: nonNegative(500_000),
     }),
   ],
-  { error: 'must say where the spring comes from: "seat" (seat force) or "bench" (bench crack pressure)' },
+  oneOf('must say where the spring comes from: "seat" (seat force) or "bench" (bench crack pressure)'),
 )
 
 export const controlSchema = z.discriminatedUnion(
   'kind',
   [
     /** Both ports open to the air: only drive pressure opens the valve. */
-    z.strictObject({ kind: z.literal('none') }),
+    section({ kind: z.literal('none') }),
     /** Bottom port on boost. */
-    z.strictObject({ kind: z.literal('bottom-boost') }),
+    section({ kind: z.literal('bottom-boost') }),
     /** Top port on the supply's regulated pressure, bottom port open. */
-    z.strictObject({ kind: z.literal('top-supply') }),
+    section({ kind: z.literal('top-supply') }),
     /** Bottom port on boost and top port on the supply. */
-    z.strictObject({ kind: z.literal('both') }),
+    section({ kind: z.literal('both') }),
     /** A bleed sends a fraction of boost to the top chamber; bottom port on boost or open. */
-    z.strictObject({
+    section({
       kind: z.literal('bleed-top'),
       fraction: fraction(),
-      bottomOnBoost: z.boolean().default(true),
+      bottomOnBoost: flag().default(true),
     }),
     /** A three-port solenoid: it feeds one chamber from its source or vents it, by duty. */
-    z.strictObject({
+    section({
       kind: z.literal('solenoid-3port'),
-      chamber: z.enum(['bottom', 'top']),
+      chamber: choice(['bottom', 'top']),
       duty: fraction(),
       solenoidDiameterM: positive(0.01).default(0.0015),
       /** The fixed restrictor that feeds or vents the chamber against the solenoid. */
       restrictorDiameterM: positive(0.01).default(0.001),
     }),
     /** A four-port solenoid: boost to the bottom chamber and supply to the top, traded by duty. */
-    z.strictObject({
+    section({
       kind: z.literal('solenoid-4port'),
       duty: fraction(),
       solenoidDiameterM: positive(0.01).default(0.0015),
       restrictorDiameterM: positive(0.01).default(0.001),
     }),
     /** Top port on the supply through a solenoid in closed loop on a boost target. */
-    z.strictObject({
+    section({
       kind: z.literal('closed-loop'),
       targetBoostPa: positive(1_000_000),
       /** Boost target by rpm; between points it is interpolated, outside held. */
-      targetByRpm: z.array(z.strictObject({ rpm: positive(20_000), boostPa: nonNegative(1_000_000) })).max(32).optional(),
+      targetByRpm: list(section({ rpm: positive(20_000), boostPa: nonNegative(1_000_000) }))
+        .max(32, { error: 'takes at most 32 points' })
+        .optional(),
       /**
        * PID gains, duty per Pa of boost error (P), per Pa·s (I) and per Pa/s of boost rise (D, on boost itself).
        * Tuned on the default scenario with a top port on boost: K_p 0.69 per psi, T_i = K_p/K_i ≈ 0.67 s,
@@ -144,10 +164,7 @@ export const controlSchema = z.discriminatedUnion(
       restrictorDiameterM: positive(0.01).default(0.001),
     }),
   ],
-  {
-    error:
-      'must be one of "none", "bottom-boost", "top-supply", "both", "bleed-top", "solenoid-3port", "solenoid-4port", "closed-loop"',
-  },
+  oneOf('must be one of "none", "bottom-boost", "top-supply", "both", "bleed-top", "solenoid-3port", "solenoid-4port", "closed-loop"'),
 )
 
 const regulator = {
@@ -161,15 +178,27 @@ export const supplySchema = z.discriminatedUnion(
   'kind',
   [
     /** The usual: the control's source is boost itself. */
-    z.strictObject({ kind: z.literal('boost') }),
-    z.strictObject({
+    section({ kind: z.literal('boost') }),
+    section({
       kind: z.literal('co2'),
       ...regulator,
       bottleVolumeM3: positive(0.05).default(0.0046), // about a 5 lb bottle (common practice, no source)
       fillMassKg: positive(20).default(2.27), // 5 lb of liquid CO₂
       bottleTemperatureK: num({ min: 230, max: 350 }).default(298.15),
+    }).superRefine((b, ctx) => {
+      // More than the densest liquid CO₂ per volume cannot be in the bottle at any temperature (co2.ts).
+      const density = b.fillMassKg / b.bottleVolumeM3
+      if (density > CO2_DENSEST_LIQUID_KG_M3) {
+        ctx.addIssue({
+          code: 'custom',
+          path: ['fillMassKg'],
+          message:
+            `is more CO₂ than supply.bottleVolumeM3 can hold: ${density.toFixed(1)} kg/m³, above the density limit of ` +
+            `${CO2_DENSEST_LIQUID_KG_M3.toFixed(1)} kg/m³ (saturated liquid CO₂ at its triple point, the densest it gets)`,
+        })
+      }
     }),
-    z.strictObject({
+    section({
       kind: z.literal('compressor'),
       ...regulator,
       tankVolumeM3: positive(0.2).default(0.0095), // a 2.5 gal tank (common practice, no source)
@@ -181,24 +210,24 @@ export const supplySchema = z.discriminatedUnion(
       initialTankPa: nonNegative(5_000_000).optional(),
     }),
   ],
-  { error: 'must be one of "boost", "co2", "compressor"' },
+  oneOf('must be one of "boost", "co2", "compressor"'),
 )
 
 export const downstreamSchema = z.discriminatedUnion(
   'kind',
   [
     /** Open dump to the air. */
-    z.strictObject({ kind: z.literal('vented') }),
+    section({ kind: z.literal('vented') }),
     /** A muffled or restricted dump: p_dn = p_amb + K·ṁ_wg². */
-    z.strictObject({ kind: z.literal('restricted'), coefficientPaPerKg2S2: positive(1e9) }),
+    section({ kind: z.literal('restricted'), coefficientPaPerKg2S2: positive(1e9) }),
     /** Plumbed back into the exhaust after the turbine: p_dn = p_to. */
-    z.strictObject({ kind: z.literal('recirculated') }),
+    section({ kind: z.literal('recirculated') }),
   ],
-  { error: 'must be one of "vented", "restricted", "recirculated"' },
+  oneOf('must be one of "vented", "restricted", "recirculated"'),
 )
 
-export const exhaustSchema = z.strictObject({
-  mode: z.enum(['ratio', 'turbine']).default('ratio'),
+export const exhaustSchema = section({
+  mode: choice(['ratio', 'turbine']).default('ratio'),
   /** Drive-to-boost pressure ratio (gauge over gauge); the trade reasons with 1:1 to 2:1. */
   ratio: num({ min: 0.5, max: 4 }),
   /** Drive pressure at zero boost, gauge. */
@@ -214,43 +243,40 @@ export const exhaustSchema = z.strictObject({
   gasHeatCapacityRatio: num({ min: 1.2, max: 1.4 }).default(1.33),
 })
 
-export const engineSchema = z
-  .strictObject({
-    displacementM3: positive(0.02),
-    volumetricEfficiency: num({ min: 0.2, max: 1.5 }).default(0.9),
-    rpmStart: positive(20_000),
-    rpmEnd: positive(20_000),
-    pullDurationS: num({ min: 0.2, max: 60 }).default(4),
-    airFuelRatio: num({ min: 5, max: 30 }).default(12.5),
-    exhaustTemperatureK: num({ min: 500, max: 1500 }).default(1173.15),
-    chargeTemperatureK: num({ min: 230, max: 500 }).default(320),
-    intakeVolumeM3: positive(0.1).default(0.004),
-    exhaustVolumeM3: positive(0.1).default(0.002),
-    /** Volumetric efficiency over rpm (interpolated, held outside); when given it replaces `volumetricEfficiency` in a pull. */
-    volumetricEfficiencyByRpm: z
-      .array(z.strictObject({ rpm: positive(20_000), volumetricEfficiency: num({ min: 0.2, max: 1.5 }) }))
-      .min(1, { error: 'needs at least one point' })
-      .max(32, { error: 'takes at most 32 points' })
-      .optional(),
-    /**
-     * Intercooler effectiveness ε; when given, the charge temperature of a pull follows the compressor outlet,
-     * T_im = T_out − ε·(T_out − T_amb), instead of the fixed `chargeTemperatureK`.
-     */
-    intercoolerEffectiveness: fraction().optional(),
-  })
-  .superRefine((e, ctx) => {
-    if (e.rpmEnd <= e.rpmStart) {
-      ctx.addIssue({ code: 'custom', path: ['rpmEnd'], message: 'must be larger than engine.rpmStart' })
+export const engineSchema = section({
+  displacementM3: positive(0.02),
+  volumetricEfficiency: num({ min: 0.2, max: 1.5 }).default(0.9),
+  rpmStart: positive(20_000),
+  rpmEnd: positive(20_000),
+  pullDurationS: num({ min: 0.2, max: 60 }).default(4),
+  airFuelRatio: num({ min: 5, max: 30 }).default(12.5),
+  exhaustTemperatureK: num({ min: 500, max: 1500 }).default(1173.15),
+  chargeTemperatureK: num({ min: 230, max: 500 }).default(320),
+  intakeVolumeM3: positive(0.1).default(0.004),
+  exhaustVolumeM3: positive(0.1).default(0.002),
+  /** Volumetric efficiency over rpm (interpolated, held outside); when given it replaces `volumetricEfficiency` in a pull. */
+  volumetricEfficiencyByRpm: list(section({ rpm: positive(20_000), volumetricEfficiency: num({ min: 0.2, max: 1.5 }) }))
+    .min(1, { error: 'needs at least one point' })
+    .max(32, { error: 'takes at most 32 points' })
+    .optional(),
+  /**
+   * Intercooler effectiveness ε; when given, the charge temperature of a pull follows the compressor outlet,
+   * T_im = T_out − ε·(T_out − T_amb), instead of the fixed `chargeTemperatureK`.
+   */
+  intercoolerEffectiveness: fraction().optional(),
+}).superRefine((e, ctx) => {
+  if (e.rpmEnd <= e.rpmStart) {
+    ctx.addIssue({ code: 'custom', path: ['rpmEnd'], message: 'must be larger than engine.rpmStart' })
+  }
+  const table = e.volumetricEfficiencyByRpm ?? []
+  for (let i = 1; i < table.length; i++) {
+    if (table[i]!.rpm <= table[i - 1]!.rpm) {
+      ctx.addIssue({ code: 'custom', path: ['volumetricEfficiencyByRpm', i, 'rpm'], message: 'must be larger than the rpm before it' })
     }
-    const table = e.volumetricEfficiencyByRpm ?? []
-    for (let i = 1; i < table.length; i++) {
-      if (table[i]!.rpm <= table[i - 1]!.rpm) {
-        ctx.addIssue({ code: 'custom', path: ['volumetricEfficiencyByRpm', i, 'rpm'], message: 'must be larger than the rpm before it' })
-      }
-    }
-  })
+  }
+})
 
-export const turboSchema = z.strictObject({
+export const turboSchema = section({
   compressorTipRadiusM: positive(0.1).default(0.03),
   inducerDiameterM: positive(0.2).default(0.046),
   /** Work coefficient ψ of the speed line of MODEL.md §4. */
@@ -271,7 +297,7 @@ export const turboSchema = z.strictObject({
   initialSpeedRadS: positive(50_000).optional(),
 })
 
-export const solverSchema = z.strictObject({
+export const solverSchema = section({
   relativeTolerance: num({ min: 1e-10, max: 1e-2 }).default(1e-6),
   maxStepS: num({ min: 1e-5, max: 0.1 }).default(0.01),
   sampleIntervalS: num({ min: 1e-3, max: 1 }).default(0.01),
@@ -285,12 +311,12 @@ export const solverSchema = z.strictObject({
   settlingDelayS: num({ min: 0, max: 30 }).default(1),
 })
 
-export const scenarioSchema = z.strictObject({
+export const scenarioSchema = section({
   ambient: ambientSchema.prefault({}),
   engine: engineSchema,
   turbo: turboSchema.prefault({}),
   wastegate: wastegateSchema,
-  springs: z.array(springSchema).min(1, { error: 'needs at least one spring' }).max(3, { error: 'takes at most 3 nested springs' }),
+  springs: list(springSchema).min(1, { error: 'needs at least one spring' }).max(3, { error: 'takes at most 3 nested springs' }),
   control: controlSchema,
   supply: supplySchema,
   exhaust: exhaustSchema,

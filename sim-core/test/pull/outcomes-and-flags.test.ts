@@ -7,7 +7,7 @@ import {
   type PullRecord,
   type Scenario,
 } from '../../src/index.ts'
-import { psi, scenarioWith } from './pull-helpers.ts'
+import { co2Supply, psi, scenarioWith } from './pull-helpers.ts'
 
 const base = defaultScenario()
 
@@ -28,7 +28,10 @@ describe('outcomes and bad configuration', () => {
     expect(() => runPull(tooSmall)).toThrow(/wastegate\.topChamberVolumeM3/)
     const cutOut = scenarioWith({ control: { kind: 'both' }, supply: { kind: 'compressor', regulatorSetpointPa: psi(10), cutInPa: 900_000, cutOutPa: 800_000 } })
     expect(() => runPull(cutOut)).toThrow(/supply\.cutOutPa/)
-    const overfilled = scenarioWith({ control: { kind: 'both' }, supply: { kind: 'co2', regulatorSetpointPa: psi(10), fillMassKg: 20 } })
+    // The schema refuses a fill this dense (test/scenario.test.ts); a scenario put together in code still gets a named error.
+    const onCo2 = scenarioWith({ control: { kind: 'both' }, supply: co2Supply(10) })
+    if (onCo2.supply.kind !== 'co2') throw new Error('a CO₂ supply expected')
+    const overfilled: Scenario = { ...onCo2, supply: { ...onCo2.supply, fillMassKg: 20 } }
     expect(() => runPull(overfilled)).toThrow(/supply\.fillMassKg/)
     expect(() => runPull(base, { relativeTolerance: 0 })).toThrow(/options\.relativeTolerance/)
     expect(() => runPull(base, { integrator: { kind: 'euler' } as never })).toThrow(/options\.integrator\.kind/)
