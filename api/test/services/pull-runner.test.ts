@@ -40,10 +40,10 @@ describe('PullRunner', () => {
 
   it('counts the wait for a busy thread against the time limit', async () => {
     const pulls = runner(1, 1500);
-    const first = pulls.run(slowScenario());
-    const second = pulls.run(defaultScenario());
-    await expect(first).rejects.toBeInstanceOf(PullTimeoutError);
-    await expect(second).rejects.toBeInstanceOf(PullTimeoutError);
+    await Promise.all([
+      expect(pulls.run(slowScenario())).rejects.toBeInstanceOf(PullTimeoutError),
+      expect(pulls.run(defaultScenario())).rejects.toBeInstanceOf(PullTimeoutError),
+    ]);
   }, 60_000);
 
   it('refuses work once closed', async () => {
