@@ -1,4 +1,7 @@
 // odex ships TypeScript source without declarations, and its source fails `strict`; this mirrors its public API.
+// The tsconfig files map "odex" here by "types/odex", without the extension: tsc finds this file, while tsx (which
+// applies tsconfig paths at run time, falling back to the package when a mapped path resolves to nothing it can
+// load) and Node import the package itself. Vite and vitest do not read paths at all.
 declare module 'odex' {
   export type Derivative = (x: number, y: number[]) => number[]
   export type OutputFunction = (

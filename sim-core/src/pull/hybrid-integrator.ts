@@ -1,4 +1,4 @@
-import { odexSolver } from './odex-solver.ts'
+import { Outcome, Solver } from 'odex'
 
 /**
  * Integrates a system whose right-hand side changes at events (a valve meeting its seat or its stop, a
@@ -77,9 +77,6 @@ export interface HybridResult<M> {
 
 /** Interpolant of one step: component c at time t inside the step. */
 type Dense = (c: number, t: number) => number
-
-/** odex's Outcome.Converged, spelled out so that only the solver class is taken from the package (odex-solver.ts). */
-const ODEX_CONVERGED = 0
 
 const BISECTION_ITERATIONS = 48
 const MAX_CHAINED_EVENTS = 4
@@ -327,7 +324,7 @@ function runOdexSegment<M>(
   acceptStep: AcceptStep,
   stats: HybridStats,
 ): SegmentEnd {
-  const solver = odexSolver(n)
+  const solver = new Solver(n)
   solver.relativeTolerance = o.relativeTolerance
   solver.absoluteTolerance = [...o.absoluteTolerance]
   solver.maxStepSize = o.maxStepS
@@ -355,7 +352,7 @@ function runOdexSegment<M>(
   })
   stats.rejected += result.nReject
   if (stopped) return { reached: false, t: tLast, y: yLast }
-  if (result.outcome === ODEX_CONVERGED) return { reached: true, t: o.endS, y: result.y }
+  if (result.outcome === Outcome.Converged) return { reached: true, t: o.endS, y: result.y }
   return { reached: false, t: tLast, y: yLast }
 }
 
