@@ -36,6 +36,7 @@ async function mountView(patchAnswer: [number, unknown]) {
     [
       { path: '/scenarios', name: 'scenarios', component: { render: () => null } },
       { path: '/scenarios/:id', name: 'scenario', component: ScenarioView, props: true },
+      { path: '/scenarios/:id/sheet', name: 'setup-sheet', component: { render: () => null } },
     ],
     '/scenarios/s1',
   )
@@ -56,6 +57,7 @@ describe('ScenarioView', () => {
     await flushPromises()
     expect(view.find('[data-testid="crack-boost"]').text()).toBe('3.9 psi')
     expect(view.find('[data-testid="save"]').attributes('disabled')).toBeDefined()
+    expect(view.find('[data-testid="open-sheet"]').attributes('href')).toBe('/scenarios/s1/sheet')
 
     await view.find('[data-testid="springs.0.seatForceN"] input').setValue('40')
     await flushPromises()

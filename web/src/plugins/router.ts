@@ -18,6 +18,14 @@ const routes: RouteRecordRaw[] = [
     meta: { public: true, title: 'Sign in' },
   },
   {
+    // Outside the app shell: the sheet is a page of its own, to print or save as PDF.
+    path: '/scenarios/:id/sheet',
+    name: 'setup-sheet',
+    component: () => import('@/views/SetupSheetView.vue'),
+    props: true,
+    meta: { title: 'Setup sheet' },
+  },
+  {
     path: '/',
     component: () => import('@/components/AppShell.vue'),
     children: [

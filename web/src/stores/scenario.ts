@@ -160,6 +160,11 @@ export const useScenarioStore = defineStore('scenario', () => {
     }
   }
 
+  /** A saved scenario to read (the setup sheet), leaving the one open for editing alone. */
+  async function fetchRow(id: string): Promise<ScenarioRow> {
+    return (await scenariosApi.get(id)).scenario
+  }
+
   async function create(name: string): Promise<ScenarioRow> {
     const { scenario } = await scenariosApi.create(name.trim())
     items.value = [scenario, ...items.value]
@@ -343,6 +348,7 @@ export const useScenarioStore = defineStore('scenario', () => {
     fetchList,
     open,
     load,
+    fetchRow,
     create,
     save,
     discardEdits,
