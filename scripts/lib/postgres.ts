@@ -204,9 +204,7 @@ export function createPostgres(
       if (await isPortOpen(config.host, config.port)) {
         throw new ScriptError(
           `Port ${config.port} on ${config.host} is already taken by another program, so PostgreSQL cannot use it. ` +
-            (config.portSetting.startsWith('CRACKPOINT_')
-              ? `Stop that program or set ${config.portSetting} to a free port.`
-              : `Tests need ${config.portSetting}: is another npm test running? Stop it or the program holding the port.`),
+            `Stop that program (another npm start or npm test?) or set ${config.portSetting} to a free port.`,
         )
       }
 

@@ -68,6 +68,16 @@ describe('parseConfig', () => {
     expect(config.redis.ephemeral).toBe(true)
   })
 
+  it('moves the test ports only by their own settings, so two test runs can share a machine', () => {
+    const config = parseConfig(
+      { CRACKPOINT_TEST_PG_PORT: '57442', CRACKPOINT_TEST_REDIS_PORT: '57389', CRACKPOINT_PG_PORT: '6100' },
+      { mode: 'test', dataDir: '/tmp/crackpoint-test-y' },
+    )
+    expect(config.postgres.port).toBe(57442)
+    expect(config.redis.port).toBe(57389)
+    expect(parseConfig({ CRACKPOINT_TEST_PG_PORT: '57442' }, { mode: 'dev' }).postgres.port).toBe(55432)
+  })
+
   it('refuses test mode without a temporary folder', () => {
     expect(() => parseConfig({}, { mode: 'test' })).toThrow(/temporary data folder/)
   })
