@@ -7,6 +7,7 @@ import { fallbackClusterRoot } from './lib/cluster-location.ts'
 import { parseConfig } from './lib/config.ts'
 import { findTestFiles } from './lib/find-test-files.ts'
 import { repoRoot } from './lib/repo-root.ts'
+import { runCommand } from './lib/run-command.ts'
 import { runMain } from './lib/run-main.ts'
 import { runVitest, type VitestOutcome, type VitestRun } from './lib/run-vitest.ts'
 import { ScriptError } from './lib/script-error.ts'
@@ -57,7 +58,8 @@ const suites: Suite[] = [
 
 /**
  * `npm test`: throwaway PostgreSQL and Redis on the test ports in a fresh temporary folder, migrations,
- * a build of the web app, then every suite in turn with the services' addresses in the environment.
+ * a build of the web app, then every suite in turn with the services' addresses in the environment, and a
+ * type-check of every workspace when no suite is named.
  * Suites run one after another because they share one database. The services and the folder are removed
  * at the end, whatever happened. `npm test -- <suite> …` runs only the suites named.
  */
@@ -145,6 +147,16 @@ runMain(async () => {
         { env, reportDir, signal: abort.signal },
       )
       outcomes.push(stopSignal === null ? outcome : { ...outcome, note: `interrupted by ${stopSignal}` })
+    }
+
+    if (wanted.length === 0 && stopSignal === null) {
+      // The suites run under tsx and vite, which strip types without checking them; the whole run checks them.
+      say('Type-checking every workspace')
+      const checked = await runCommand(['npm', 'run', '--silent', 'type-check'], { allowFailure: true, signal: abort.signal })
+      if (checked.code !== 0) {
+        failedSteps.push('type-check')
+        console.error(checked.output.trim())
+      }
     }
 
     for (const status of await services.status()) {
