@@ -42,6 +42,8 @@ const envSchema = z
     WEB_DIST: z.string().min(1).default(`${repoRoot}web/dist`),
     LOG_LEVEL: z.enum(logLevels).optional(),
     SWEEP_CHUNK_SIZE: z.coerce.number().int().min(1).max(10_000).default(250),
+    SWEEP_DYNAMIC_CHUNK_SIZE: z.coerce.number().int().min(1).max(10_000).default(20),
+    RECONCILE_INTERVAL_MS: z.coerce.number().int().min(500).max(86_400_000).default(60_000),
     SWEEP_MAX_POINTS: z.coerce.number().int().min(1).max(10_000_000).default(100_000),
     SIGN_IN_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(10_000).default(10),
     SIGN_IN_ADDRESS_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(100_000).default(60),
@@ -70,7 +72,12 @@ export interface Config {
   readonly logLevel: (typeof logLevels)[number];
   /** bcrypt work factor: 12 in use, 4 under test where hashing speed is all that matters. */
   readonly bcryptCost: number;
+  /** Points per chunk of a static sweep (microseconds a point). */
   readonly sweepChunkSize: number;
+  /** Points per chunk of a dynamic or both-level sweep: each point is a whole pull, so chunks are small to spread over workers. */
+  readonly sweepDynamicChunkSize: number;
+  /** How often unfinished chunks missing from Redis are enqueued again (the server does one pass at start-up too). */
+  readonly reconcileIntervalMs: number;
   readonly sweepMaxPoints: number;
   /** Failed sign-ins per account and minute. */
   readonly signInLimitPerMinute: number;
@@ -116,6 +123,8 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     logLevel: e.LOG_LEVEL ?? (e.NODE_ENV === 'test' ? 'silent' : 'info'),
     bcryptCost: e.NODE_ENV === 'test' ? 4 : 12,
     sweepChunkSize: e.SWEEP_CHUNK_SIZE,
+    sweepDynamicChunkSize: e.SWEEP_DYNAMIC_CHUNK_SIZE,
+    reconcileIntervalMs: e.RECONCILE_INTERVAL_MS,
     sweepMaxPoints: e.SWEEP_MAX_POINTS,
     signInLimitPerMinute: e.SIGN_IN_LIMIT_PER_MINUTE,
     signInAddressLimitPerMinute: e.SIGN_IN_ADDRESS_LIMIT_PER_MINUTE,

@@ -1,5 +1,5 @@
 import { Queue } from 'bullmq';
-import { SWEEP_QUEUE, type SweepChunkJob } from '@crackpoint/worker';
+import { startReconciler, SWEEP_QUEUE, type SweepChunkJob } from '@crackpoint/worker';
 import { Redis } from 'ioredis';
 import { createApp } from './app.ts';
 import { loadConfig } from './config.ts';
@@ -17,6 +17,9 @@ const redis = new Redis(config.redisUrl, { enableOfflineQueue: false, maxRetries
 redis.on('error', (error) => logger.warn({ err: error }, 'redis connection error'));
 const queue = new Queue<SweepChunkJob>(SWEEP_QUEUE, { connection: redis });
 queue.on('error', (error) => logger.warn({ err: error }, 'sweep queue error'));
+
+// Chunks PostgreSQL holds unfinished but Redis lost are enqueued again, now and periodically.
+const reconciler = startReconciler({ knex, queue, intervalMs: config.reconcileIntervalMs, logger });
 
 const pulls = new PullRunner({ threads: config.pullThreads, timeLimitMs: config.pullTimeLimitMs });
 const app = createApp({ knex, queue, config, logger, pulls });
@@ -41,6 +44,7 @@ async function shutdown(signal: string): Promise<void> {
   forced.unref();
   await new Promise<void>((resolve) => server.close(() => resolve()));
   await pulls.close();
+  await reconciler.stop();
   await queue.close().catch((error: unknown) => logger.warn({ err: error }, 'closing the queue failed'));
   await redis.quit().catch(() => redis.disconnect());
   await knex.destroy();

@@ -126,8 +126,8 @@ describe('POST /api/sweeps validation', () => {
     expect(response.body.error.fields.axes).toMatch(/1600 points.*at most 1000/);
   });
 
-  it('returns 400 naming level for a level that cannot run yet', async () => {
-    const response = await request(ctx.app).post('/api/sweeps').set(bearer(tokens.engineer)).send({ scenarioId, level: 'dynamic', axes: axes3x3 });
+  it('returns 400 naming level for a level that does not exist', async () => {
+    const response = await request(ctx.app).post('/api/sweeps').set(bearer(tokens.engineer)).send({ scenarioId, level: 'quasi-static', axes: axes3x3 });
     expect(response.status).toBe(400);
     expect(response.body.error.fields).toHaveProperty('level');
   });
@@ -213,6 +213,9 @@ describe('a 3 × 3 static sweep, end to end with a real worker', () => {
     const metric = await request(ctx.app).get(`/api/sweeps/${sweepId}/surface?metric=peak`).set(bearer(tokens.analyst));
     expect(metric.status).toBe(400);
     expect(metric.body.error.fields).toHaveProperty('metric');
+    const dynamicOnly = await request(ctx.app).get(`/api/sweeps/${sweepId}/surface?metric=settledBoostPa`).set(bearer(tokens.analyst));
+    expect(dynamicOnly.status).toBe(400);
+    expect(dynamicOnly.body.error.fields.metric).toMatch(/dynamic level/);
   });
 
   it('is listed for its scenario and hidden from another workspace', async () => {

@@ -14,4 +14,7 @@ export {
   type SweepChunkDeps,
   type SweepChunkOutcome,
 } from './processors/sweep-chunk.ts';
+export { SWEEP_LEVELS, type SweepLevel, type PointRow } from './points/point-row.ts';
+export { PointPool, type ComputeBatch, type PointBatch } from './points/point-pool.ts';
+export { enqueueChunks, reconcileSweeps, startReconciler, type ChunkQueue, type ReconcileOutcome, type Reconciler } from './reconcile.ts';
 export { createSweepWorker, type SweepWorker, type SweepWorkerOptions } from './worker.ts';

@@ -1,14 +1,31 @@
+import { Queue } from 'bullmq';
+import { Redis } from 'ioredis';
 import knexPkg from 'knex';
 import { pino } from 'pino';
 import { loadWorkerConfig } from './config.ts';
-import { SWEEP_QUEUE } from './queues.ts';
+import type { SweepChunkJob } from './queues.ts';
+import { startReconciler } from './reconcile.ts';
 import { createSweepWorker } from './worker.ts';
 
 const config = loadWorkerConfig();
 const logger = pino({ name: 'crackpoint-worker', level: config.logLevel });
 const knex = knexPkg({ client: 'pg', connection: config.databaseUrl, pool: { min: 0, max: config.concurrency + 2 } });
-const sweepWorker = createSweepWorker({ knex, redis: config.redisUrl, concurrency: config.concurrency, logger });
-logger.info({ queue: SWEEP_QUEUE, concurrency: config.concurrency }, 'Crackpoint worker started');
+const sweepWorker = createSweepWorker({
+  knex,
+  redis: config.redisUrl,
+  queueName: config.queueName,
+  concurrency: config.concurrency,
+  lockDurationMs: config.lockDurationMs,
+  stalledIntervalMs: config.stalledIntervalMs,
+  logger,
+});
+// Its own connection for adding jobs: the worker's is held by blocking reads.
+const queueRedis = new Redis(config.redisUrl, { maxRetriesPerRequest: null });
+queueRedis.on('error', (error) => logger.warn({ err: error }, 'redis connection error'));
+const queue = new Queue<SweepChunkJob>(config.queueName, { connection: queueRedis });
+queue.on('error', (error) => logger.warn({ err: error }, 'sweep queue error'));
+const reconciler = startReconciler({ knex, queue, intervalMs: config.reconcileIntervalMs, logger });
+logger.info({ queue: config.queueName, concurrency: config.concurrency }, 'Crackpoint worker started');
 
 let closing = false;
 async function shutdown(signal: string): Promise<void> {
@@ -21,7 +38,10 @@ async function shutdown(signal: string): Promise<void> {
     process.exit(1);
   }, 30_000);
   forced.unref();
+  await reconciler.stop();
   await sweepWorker.close().catch((error: unknown) => logger.error({ err: error }, 'closing the worker failed'));
+  await queue.close().catch(() => undefined);
+  await queueRedis.quit().catch(() => queueRedis.disconnect());
   await knex.destroy();
   logger.info('stopped');
   process.exit(0);

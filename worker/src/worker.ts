@@ -2,6 +2,7 @@ import { UnrecoverableError, Worker, type Job } from 'bullmq';
 import { Redis } from 'ioredis';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
+import { PointPool } from './points/point-pool.ts';
 import { markSweepFailed, processSweepChunk, type SweepChunkOutcome } from './processors/sweep-chunk.ts';
 import { SWEEP_QUEUE, sweepChunkJobSchema, type SweepChunkJob } from './queues.ts';
 
@@ -12,6 +13,12 @@ export interface SweepWorkerOptions {
   /** Tests use a queue of their own; production uses SWEEP_QUEUE. */
   queueName?: string;
   concurrency?: number;
+  /** Threads computing points; one per chunk running at once unless told. */
+  threads?: number;
+  /** How long a job's lock lasts unrenewed (BullMQ's lockDuration): past it a dead worker's chunk is taken for stalled. */
+  lockDurationMs?: number;
+  /** How often this worker looks for stalled chunks (BullMQ's stalledInterval). */
+  stalledIntervalMs?: number;
   logger?: Logger;
 }
 
@@ -28,16 +35,23 @@ export function createSweepWorker(options: SweepWorkerOptions): SweepWorker {
   const connection =
     typeof options.redis === 'string' ? new Redis(options.redis, { maxRetriesPerRequest: null }) : options.redis;
 
-  // Static points are closed-form and take microseconds, so chunks run in this process; the
-  // dynamic level will need sandboxed processors to keep the event loop free.
+  // Points are computed in threads: this thread only moves rows, so it keeps renewing job locks.
+  const concurrency = options.concurrency ?? 1;
+  const pool = new PointPool(options.threads ?? concurrency);
   const worker = new Worker<SweepChunkJob, SweepChunkOutcome>(
     options.queueName ?? SWEEP_QUEUE,
     async (job: Job<SweepChunkJob, SweepChunkOutcome>) => {
       const payload = sweepChunkJobSchema.safeParse(job.data);
       if (!payload.success) throw new UnrecoverableError(`job ${job.id ?? '?'} has a payload that is not a sweep chunk`);
-      return processSweepChunk({ knex, ...(logger ? { logger } : {}) }, payload.data);
+      return processSweepChunk({ knex, compute: pool.compute, ...(logger ? { logger } : {}) }, payload.data);
     },
-    { connection, concurrency: options.concurrency ?? 1, autorun: true },
+    {
+      connection,
+      concurrency,
+      autorun: true,
+      ...(options.lockDurationMs ? { lockDuration: options.lockDurationMs } : {}),
+      ...(options.stalledIntervalMs ? { stalledInterval: options.stalledIntervalMs } : {}),
+    },
   );
 
   worker.on('failed', (job, error) => {
@@ -60,6 +74,7 @@ export function createSweepWorker(options: SweepWorkerOptions): SweepWorker {
     worker,
     async close() {
       await worker.close();
+      await pool.close();
       if (ownsConnection) await connection.quit().catch(() => connection.disconnect());
     },
   };

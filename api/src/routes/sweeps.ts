@@ -7,7 +7,8 @@ import {
   sweepListSchema,
   sweepResponseSchema,
 } from '../schemas/sweeps.ts';
-import { createSweep, getSurface, getSweep, listSweeps } from '../services/sweeps.ts';
+import { emptyBodySchema } from '../schemas/pulls.ts';
+import { cancelSweep, createSweep, getSurface, getSweep, listSweeps } from '../services/sweeps.ts';
 import { defineRoute, ROLES } from './route-def.ts';
 
 export const sweepRoutes = [
@@ -61,5 +62,21 @@ export const sweepRoutes = [
     query: surfaceQuerySchema,
     success: { status: 200, description: 'The surface; null where a point has no value', schema: surfaceSchema },
     handler: ({ deps, auth, params, query }) => getSurface(deps.knex, auth.workspaceId, params.id, query),
+  }),
+  defineRoute({
+    id: 'cancelSweep',
+    method: 'post',
+    path: '/sweeps/:id/cancel',
+    summary: 'Stop a queued or running sweep; points already computed stay',
+    tag: 'Sweeps',
+    access: ROLES.compute,
+    scope: 'object',
+    resource: 'Sweep',
+    params: idParamsSchema,
+    body: emptyBodySchema,
+    bodyOptional: true,
+    success: { status: 200, description: 'The sweep, now cancelled', schema: sweepResponseSchema },
+    errors: [409],
+    handler: async ({ deps, auth, params }) => ({ sweep: await cancelSweep(deps, auth, params.id) }),
   }),
 ];

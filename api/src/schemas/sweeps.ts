@@ -4,8 +4,8 @@ import { uuidSchema } from './common.ts';
 
 export const createSweepBodySchema = z.strictObject({
   scenarioId: uuidSchema,
-  // The dynamic level needs the pull model on the workers; until then only the static level runs.
-  level: sweepLevelSchema.default('static').refine((level) => level === 'static', 'only the static level can run for now'),
+  /** static: the closed-form balance; dynamic: a whole pull per point; both: each point at both levels. */
+  level: sweepLevelSchema.default('static'),
   axes: sweepSpecSchema.shape.axes,
 });
 export type CreateSweepBody = z.output<typeof createSweepBodySchema>;
@@ -17,11 +17,42 @@ export const listSweepsQuerySchema = z.object({
 });
 export type ListSweepsQuery = z.output<typeof listSweepsQuerySchema>;
 
-export const SURFACE_METRICS = ['crackBoostPa', 'fullOpenBoostPa'] as const;
-export type SurfaceMetric = (typeof SURFACE_METRICS)[number];
+/** Metrics of the static level and the column each is stored in. */
+export const STATIC_METRIC_COLUMNS = {
+  crackBoostPa: 'crack_boost_pa',
+  fullOpenBoostPa: 'full_open_boost_pa',
+} as const;
+
+/** Metrics of a dynamic pull (MODEL.md §5) and their columns; flags read 1 (set) or 0. */
+export const DYNAMIC_METRIC_COLUMNS = {
+  dynamicCrackBoostPa: 'dynamic_crack_boost_pa',
+  peakBoostPa: 'peak_boost_pa',
+  settledBoostPa: 'settled_boost_pa',
+  staticBoostAtSettledLiftPa: 'static_boost_at_settled_lift_pa',
+  overshootPa: 'overshoot_pa',
+  timeTo90PercentS: 'time_to_90_percent_s',
+  creepPa: 'creep_pa',
+  peakDrivePa: 'peak_drive_pa',
+  driveRatioSeen: 'drive_ratio_seen',
+  maxLiftFraction: 'max_lift_fraction',
+  gasUsedPerPullKg: 'gas_used_per_pull_kg',
+  pullsPerSupply: 'pulls_per_supply',
+  overBoostLimit: 'over_boost_limit',
+  heldOpenByDrive: 'held_open_by_drive',
+  supplyBelowSetpoint: 'supply_below_setpoint',
+  pastZeroFlowLine: 'past_zero_flow_line',
+  notSettled: 'not_settled',
+} as const;
+
+/** Metrics stored as booleans. */
+export const FLAG_METRICS: ReadonlySet<string> = new Set(['overBoostLimit', 'heldOpenByDrive', 'supplyBelowSetpoint', 'pastZeroFlowLine', 'notSettled']);
+
+export const METRIC_COLUMNS = { ...STATIC_METRIC_COLUMNS, ...DYNAMIC_METRIC_COLUMNS } as const;
+export type SurfaceMetric = keyof typeof METRIC_COLUMNS;
+export const SURFACE_METRICS = Object.keys(METRIC_COLUMNS) as [SurfaceMetric, ...SurfaceMetric[]];
 
 export const surfaceQuerySchema = z.object({
-  metric: z.enum(SURFACE_METRICS, { error: 'must be crackBoostPa or fullOpenBoostPa' }).default('crackBoostPa'),
+  metric: z.enum(SURFACE_METRICS, { error: `must be one of ${SURFACE_METRICS.join(', ')}` }).default('crackBoostPa'),
   x: z.coerce.number().int('must be an axis number').min(0).max(2).default(0),
   y: z.coerce.number().int('must be an axis number').min(0).max(2).default(1),
   /** For a three-axis sweep: which value (by index) of the remaining axis the surface is cut at. */

@@ -1,17 +1,27 @@
 import { countPoints, resolveAxes } from '@crackpoint/sim-core';
-import { jobIdFor, SWEEP_CHUNK_JOB, SWEEP_CHUNK_JOB_OPTIONS, type SweepChunkJob } from '@crackpoint/worker';
+import { enqueueChunks, jobIdFor, type SweepChunkJob } from '@crackpoint/worker';
 import type { Queue } from 'bullmq';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
 import type { Config } from '../config.ts';
 import { AppError, type FieldErrors } from '../errors/index.ts';
-import { Sweep, SweepPoint, type ResolvedAxis } from '../models/index.ts';
-import type { CreateSweepBody, ListSweepsQuery, Surface, SurfaceQuery, SweepView } from '../schemas/sweeps.ts';
+import { Sweep, type ResolvedAxis } from '../models/index.ts';
+import {
+  DYNAMIC_METRIC_COLUMNS,
+  FLAG_METRICS,
+  METRIC_COLUMNS,
+  STATIC_METRIC_COLUMNS,
+  type CreateSweepBody,
+  type ListSweepsQuery,
+  type Surface,
+  type SurfaceQuery,
+  type SweepView,
+} from '../schemas/sweeps.ts';
 import type { AuthContext } from './auth.ts';
 import { findScenario } from './scenarios.ts';
 
 /** What the API needs of the sweep queue: enqueue chunks and report its health. */
-export type SweepQueue = Pick<Queue<SweepChunkJob>, 'name' | 'addBulk' | 'getJobCounts'>;
+export type SweepQueue = Pick<Queue<SweepChunkJob>, 'name' | 'addBulk' | 'getJobCounts' | 'getJob' | 'remove'>;
 
 export interface SweepDeps {
   knex: Knex;
@@ -20,7 +30,6 @@ export interface SweepDeps {
   logger: Logger;
 }
 
-const ENQUEUE_BATCH = 500;
 /** A Redis that accepts the connection but never answers must not hold the request open. */
 const ENQUEUE_TIMEOUT_MS = 5000;
 const CHUNK_INSERT_BATCH = 1000;
@@ -74,7 +83,7 @@ export async function createSweep(deps: SweepDeps, auth: AuthContext, input: Cre
       'The sweep is too large.',
     );
   }
-  const chunkSize = deps.config.sweepChunkSize;
+  const chunkSize = input.level === 'static' ? deps.config.sweepChunkSize : deps.config.sweepDynamicChunkSize;
   const chunkCount = Math.ceil(pointCount / chunkSize);
 
   // The sweep and every chunk row exist together or not at all; the workers trust both.
@@ -101,16 +110,10 @@ export async function createSweep(deps: SweepDeps, auth: AuthContext, input: Cre
   });
 
   // PostgreSQL is the record of what must run. If Redis refuses the jobs now, the sweep stays
-  // queued there and can be enqueued again later under the same job ids.
+  // queued there and reconciliation enqueues it again later under the same job ids.
   try {
-    for (let first = 0; first < chunkCount; first += ENQUEUE_BATCH) {
-      const jobs = [];
-      for (let chunkIndex = first; chunkIndex < Math.min(first + ENQUEUE_BATCH, chunkCount); chunkIndex++) {
-        const data: SweepChunkJob = { sweepId: sweep.id, chunkIndex };
-        jobs.push({ name: SWEEP_CHUNK_JOB, data, opts: { ...SWEEP_CHUNK_JOB_OPTIONS, jobId: jobIdFor(data) } });
-      }
-      await withTimeout(deps.queue.addBulk(jobs), ENQUEUE_TIMEOUT_MS, 'enqueueing sweep chunks');
-    }
+    const chunks: SweepChunkJob[] = Array.from({ length: chunkCount }, (_, chunkIndex) => ({ sweepId: sweep.id, chunkIndex }));
+    await withTimeout(enqueueChunks(deps.queue, chunks), ENQUEUE_TIMEOUT_MS, 'enqueueing sweep chunks');
   } catch (error) {
     deps.logger.error({ err: error, sweepId: sweep.id, chunkCount }, 'sweep saved but its chunks could not be enqueued');
   }
@@ -126,6 +129,35 @@ async function findSweep(knex: Knex, workspaceId: string, id: string): Promise<S
 
 export async function getSweep(knex: Knex, workspaceId: string, id: string): Promise<SweepView> {
   return presentSweep(await findSweep(knex, workspaceId, id));
+}
+
+/**
+ * Stops a sweep: the state changes first, in PostgreSQL, which is what the workers check between
+ * batches (under the sweep row's lock, so no point is written after this commits); then the chunks
+ * still waiting in Redis are removed. A job Redis refuses to remove (running, or Redis away) finds the
+ * sweep cancelled when it runs and stops without writing.
+ */
+export async function cancelSweep(deps: SweepDeps, auth: AuthContext, id: string): Promise<SweepView> {
+  const sweep = await deps.knex.transaction(async (trx) => {
+    const row = await Sweep.query(trx).modify('inWorkspace', auth.workspaceId).findById(id).forUpdate();
+    if (!row) throw AppError.notFound('Sweep');
+    if (row.state !== 'queued' && row.state !== 'running') {
+      throw new AppError(409, 'sweep_finished', `The sweep is already ${row.state}; only a queued or running sweep can be cancelled.`);
+    }
+    return row.$query(trx).patchAndFetch({ state: 'cancelled', finishedAt: new Date() });
+  });
+
+  const open = await deps.knex('sweep_chunks').where({ sweep_id: sweep.id }).whereNot({ state: 'done' }).pluck<number[]>('chunk_index');
+  try {
+    await withTimeout(
+      Promise.all(open.map((chunkIndex) => deps.queue.remove(jobIdFor({ sweepId: sweep.id, chunkIndex })))),
+      ENQUEUE_TIMEOUT_MS,
+      'removing cancelled chunks',
+    );
+  } catch (error) {
+    deps.logger.warn({ err: error, sweepId: sweep.id }, 'sweep cancelled but some of its jobs could not be removed from the queue');
+  }
+  return presentSweep(sweep);
 }
 
 export async function listSweeps(
@@ -150,6 +182,17 @@ function strideOf(axes: readonly ResolvedAxis[], axis: number): number {
   return axes.slice(axis + 1).reduce((n, a) => n * a.values.length, 1);
 }
 
+/** A metric the sweep's level never computes is a mistake to point out, not a grid of nulls. */
+function metricFieldsFor(level: Sweep['level'], metric: SurfaceQuery['metric']): FieldErrors | undefined {
+  if (level === 'static' && metric in DYNAMIC_METRIC_COLUMNS) {
+    return { metric: `is a result of the dynamic level; this sweep ran the static level only (${Object.keys(STATIC_METRIC_COLUMNS).join(', ')})` };
+  }
+  if (level === 'dynamic' && metric in STATIC_METRIC_COLUMNS) {
+    return { metric: `is a result of the static level; this sweep ran the dynamic level only (dynamicCrackBoostPa, settledBoostPa, …)` };
+  }
+  return undefined;
+}
+
 export async function getSurface(knex: Knex, workspaceId: string, id: string, query: SurfaceQuery): Promise<Surface> {
   const sweep = await findSweep(knex, workspaceId, id);
   const axes = sweep.axes;
@@ -166,11 +209,18 @@ export async function getSurface(knex: Knex, workspaceId: string, id: string, qu
   const yAxis = axes[query.y];
   if (Object.keys(fields).length > 0 || !xAxis || !yAxis) throw AppError.validation(fields, 'The surface query is not valid.');
 
-  const column = query.metric === 'crackBoostPa' ? 'crack_boost_pa' : 'full_open_boost_pa';
-  const points = SweepPoint.query(knex)
+  const levelFields = metricFieldsFor(sweep.level, query.metric);
+  if (levelFields) throw AppError.validation(levelFields, 'The surface query is not valid.');
+
+  const column = METRIC_COLUMNS[query.metric];
+  // Flags are booleans in the table; a surface plots them as 1 (set) and 0.
+  const points = knex('sweep_points')
     .where('sweep_id', sweep.id)
     .whereNotNull(column)
-    .select('point_index', column);
+    .select<{ point_index: number; value: number }[]>(
+      'point_index',
+      knex.raw(FLAG_METRICS.has(query.metric) ? '??::int as value' : '?? as value', [column]),
+    );
   if (other !== undefined && otherAxis) {
     points.whereRaw('(point_index / ?) % ? = ?', [strideOf(axes, other), otherAxis.values.length, query.slice]);
   }
@@ -179,10 +229,10 @@ export async function getSurface(knex: Knex, workspaceId: string, id: string, qu
   const xStride = strideOf(axes, query.x);
   const yStride = strideOf(axes, query.y);
   for (const point of await points) {
-    const ix = Math.floor(point.pointIndex / xStride) % xAxis.values.length;
-    const iy = Math.floor(point.pointIndex / yStride) % yAxis.values.length;
+    const ix = Math.floor(point.point_index / xStride) % xAxis.values.length;
+    const iy = Math.floor(point.point_index / yStride) % yAxis.values.length;
     const row = z[iy];
-    if (row) row[ix] = query.metric === 'crackBoostPa' ? point.crackBoostPa : point.fullOpenBoostPa;
+    if (row) row[ix] = point.value;
   }
   return {
     metric: query.metric,

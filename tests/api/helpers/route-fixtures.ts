@@ -97,6 +97,12 @@ export const routeFixtures: Record<string, RouteFixture> = {
   getSweep: {
     prepare: async ({ world, target }) => ({ path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'))}` }),
   },
+  cancelSweep: {
+    prepare: async ({ world, target }) => ({
+      path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'))}/cancel`,
+      body: {},
+    }),
+  },
   getSweepSurface: {
     prepare: async ({ world, target }) => ({
       path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'))}/surface`,

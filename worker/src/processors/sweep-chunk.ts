@@ -1,21 +1,20 @@
-import {
-  coordinatesOf,
-  evaluateStaticPoint,
-  parseScenario,
-  pointAt,
-  type ResolvedAxis,
-  type Scenario,
-} from '@crackpoint/sim-core';
+import { parseScenario } from '@crackpoint/sim-core';
 import { UnrecoverableError } from 'bullmq';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
 import { z } from 'zod';
+import type { ComputeBatch, PointBatch } from '../points/point-pool.ts';
+import { computePointRow, POINT_ROW_UPDATE_COLUMNS, SWEEP_LEVELS, type PointRow } from '../points/point-row.ts';
 import { sweepChunkJobSchema } from '../queues.ts';
+
+export { computePointRow, type PointRow } from '../points/point-row.ts';
 
 export interface SweepChunkDeps {
   /** A plain knex (real snake_case column names). */
   knex: Knex;
   logger?: Logger;
+  /** Where points are computed; left out, on the calling thread (tests, tiny static sweeps). */
+  compute?: ComputeBatch;
 }
 
 export interface SweepChunkOutcome {
@@ -28,17 +27,22 @@ export interface SweepChunkOutcome {
   skipped?: 'sweep-missing' | 'sweep-stopped' | 'chunk-already-done';
 }
 
-const UPSERT_BATCH = 500;
-const ERROR_TEXT_MAX = 500;
+/**
+ * Points per batch: the sweep's state is checked and progress recorded between batches, so a cancel
+ * takes effect within one batch. A static point takes microseconds, a dynamic one a whole pull.
+ */
+const BATCH_POINTS = { static: 500, dynamic: 4, both: 4 } as const;
 
 const axesSchema = z
   .array(z.object({ path: z.string().min(1), values: z.array(z.number()).min(1) }))
   .min(1)
   .max(3);
+const levelSchema = z.enum(SWEEP_LEVELS);
 
 interface SweepRow {
   id: string;
   state: string;
+  level: string;
   scenario_snapshot: unknown;
   axes: unknown;
 }
@@ -49,62 +53,40 @@ interface ChunkRow {
   state: string;
 }
 
-interface PointRow {
-  sweep_id: string;
-  point_index: number;
-  axis0: number | null;
-  axis1: number | null;
-  axis2: number | null;
-  status: 'ok' | 'never-opens' | 'open-at-zero-boost' | 'failed';
-  crack_boost_pa: number | null;
-  full_open_boost_pa: number | null;
-  error: string | null;
-  result: null;
-}
+const computeHere: ComputeBatch = async (batch: PointBatch) =>
+  batch.indices.map((index) => computePointRow(batch.sweepId, batch.scenario, batch.axes, index, batch.level));
 
-function finiteOrNull(value: number | null): number | null {
-  return value !== null && Number.isFinite(value) ? value : null;
-}
+const STOPPED_STATES = ['cancelled', 'failed'];
 
-/** One point; a point the model cannot evaluate is recorded with its reason, never thrown. */
-export function computePointRow(sweepId: string, scenario: Scenario, axes: readonly ResolvedAxis[], index: number): PointRow {
-  const coords = coordinatesOf(axes, index);
-  const axisValue = (a: number): number | null => {
-    const axis = axes[a];
-    const at = coords[a];
-    return axis && at !== undefined ? (axis.values[at] ?? null) : null;
-  };
-  const row: PointRow = {
-    sweep_id: sweepId,
-    point_index: index,
-    axis0: axisValue(0),
-    axis1: axisValue(1),
-    axis2: axisValue(2),
-    status: 'failed',
-    crack_boost_pa: null,
-    full_open_boost_pa: null,
-    error: null,
-    result: null,
-  };
-  try {
-    const point = pointAt(scenario, axes, index);
-    const result = evaluateStaticPoint(point.scenario);
-    const crack = finiteOrNull(result.crackBoostPa);
-    const fullOpen = finiteOrNull(result.fullOpenBoostPa);
-    if (crack !== result.crackBoostPa || fullOpen !== result.fullOpenBoostPa) {
-      return { ...row, error: 'the model gave a non-finite boost' };
-    }
-    return { ...row, status: result.status, crack_boost_pa: crack, full_open_boost_pa: fullOpen };
-  } catch (error) {
-    const message = error instanceof Error ? error.message : String(error);
-    return { ...row, error: message.slice(0, ERROR_TEXT_MAX) || 'the point could not be evaluated' };
-  }
+/** Counters are recounted from sweep_points rather than incremented, so a point written twice counts once. */
+async function recount(trx: Knex.Transaction, sweepId: string): Promise<{ done: number; failed: number }> {
+  const counts = await trx('sweep_points')
+    .where({ sweep_id: sweepId })
+    .first<{ done: string; failed: string }>(trx.raw('count(*) as done'), trx.raw("count(*) filter (where status = 'failed') as failed"));
+  return { done: Number(counts?.done ?? 0), failed: Number(counts?.failed ?? 0) };
 }
 
 /**
- * Counters are recounted from sweep_points rather than incremented, so a chunk that runs twice
- * (a retry, a duplicate delivery) cannot count its points twice. The sweep row is locked first so
- * two chunks finishing together are serialised and the last one sees every other chunk done.
+ * Writes one batch unless the sweep was stopped meanwhile. The sweep row is locked first: a cancel
+ * (an update of that row) either committed before, and nothing is written, or waits until this batch
+ * is in, so no point lands after a cancel.
+ */
+async function writeBatch(knex: Knex, sweepId: string, rows: PointRow[]): Promise<'written' | 'stopped'> {
+  return knex.transaction(async (trx) => {
+    const sweep = await trx('sweeps').where({ id: sweepId }).forUpdate().first<{ state: string } | undefined>('state');
+    if (!sweep || STOPPED_STATES.includes(sweep.state)) return 'stopped';
+    await trx('sweep_points').insert(rows).onConflict(['sweep_id', 'point_index']).merge([...POINT_ROW_UPDATE_COLUMNS]);
+    const counts = await recount(trx, sweepId);
+    await trx('sweeps')
+      .where({ id: sweepId })
+      .update({ points_done: counts.done, points_failed: counts.failed, updated_at: trx.fn.now() });
+    return 'written';
+  });
+}
+
+/**
+ * The sweep row is locked first so two chunks finishing together are serialised and the last one
+ * sees every other chunk done.
  */
 async function finishChunk(knex: Knex, sweepId: string, chunkIndex: number): Promise<string> {
   return knex.transaction(async (trx) => {
@@ -113,25 +95,20 @@ async function finishChunk(knex: Knex, sweepId: string, chunkIndex: number): Pro
     await trx('sweep_chunks')
       .where({ sweep_id: sweepId, chunk_index: chunkIndex })
       .update({ state: 'done', updated_at: trx.fn.now() });
-    const counts = await trx('sweep_points')
-      .where({ sweep_id: sweepId })
-      .first<{ done: string; failed: string }>(
-        trx.raw('count(*) as done'),
-        trx.raw("count(*) filter (where status = 'failed') as failed"),
-      );
+    const counts = await recount(trx, sweepId);
     const open = await trx('sweep_chunks')
       .where({ sweep_id: sweepId })
       .whereNot({ state: 'done' })
       .first<{ n: string }>(trx.raw('count(*) as n'));
     const allDone = Number(open?.n ?? 0) === 0;
     // A sweep already failed or cancelled keeps that state; its counters still tell what got done.
-    const stopped = sweep.state === 'failed' || sweep.state === 'cancelled';
+    const stopped = STOPPED_STATES.includes(sweep.state);
     const state = stopped ? sweep.state : allDone ? 'done' : 'running';
     await trx('sweeps')
       .where({ id: sweepId })
       .update({
-        points_done: Number(counts?.done ?? 0),
-        points_failed: Number(counts?.failed ?? 0),
+        points_done: counts.done,
+        points_failed: counts.failed,
         state,
         started_at: trx.raw('coalesce(started_at, now())'),
         finished_at: allDone || stopped ? trx.raw('coalesce(finished_at, now())') : null,
@@ -147,11 +124,14 @@ export async function processSweepChunk(deps: SweepChunkDeps, payload: unknown):
   if (!job.success) throw new UnrecoverableError(`sweep chunk payload is not valid: ${job.error.issues[0]?.message ?? ''}`);
   const { sweepId, chunkIndex } = job.data;
   const { knex } = deps;
+  const compute = deps.compute ?? computeHere;
 
-  const sweep = await knex('sweeps').where({ id: sweepId }).first<SweepRow | undefined>('id', 'state', 'scenario_snapshot', 'axes');
+  const sweep = await knex('sweeps')
+    .where({ id: sweepId })
+    .first<SweepRow | undefined>('id', 'state', 'level', 'scenario_snapshot', 'axes');
   // Deleted with its scenario or workspace (the cascade took the chunks too): nothing left to do.
   if (!sweep) return { sweepId, chunkIndex, computed: 0, failed: 0, sweepState: 'missing', skipped: 'sweep-missing' };
-  if (sweep.state === 'cancelled' || sweep.state === 'failed') {
+  if (STOPPED_STATES.includes(sweep.state)) {
     return { sweepId, chunkIndex, computed: 0, failed: 0, sweepState: sweep.state, skipped: 'sweep-stopped' };
   }
 
@@ -168,8 +148,11 @@ export async function processSweepChunk(deps: SweepChunkDeps, payload: unknown):
   if (!parsedScenario.ok) throw new UnrecoverableError(`sweep ${sweepId} holds a scenario that is not valid`);
   const parsedAxes = axesSchema.safeParse(sweep.axes);
   if (!parsedAxes.success) throw new UnrecoverableError(`sweep ${sweepId} holds axes that are not valid`);
+  const parsedLevel = levelSchema.safeParse(sweep.level);
+  if (!parsedLevel.success) throw new UnrecoverableError(`sweep ${sweepId} has a level that is not known`);
   const scenario = parsedScenario.scenario;
   const axes = parsedAxes.data;
+  const level = parsedLevel.data;
 
   await knex.transaction(async (trx) => {
     await trx('sweep_chunks')
@@ -180,22 +163,34 @@ export async function processSweepChunk(deps: SweepChunkDeps, payload: unknown):
       .update({ state: 'running', started_at: trx.raw('coalesce(started_at, now())'), updated_at: trx.fn.now() });
   });
 
-  const rows: PointRow[] = [];
-  for (let index = chunk.first_index; index < chunk.first_index + chunk.point_count; index++) {
-    rows.push(computePointRow(sweepId, scenario, axes, index));
-  }
-
-  for (let first = 0; first < rows.length; first += UPSERT_BATCH) {
+  // Points are a pure function of their index, so those a crashed run already wrote stand as they are.
+  const lastIndex = chunk.first_index + chunk.point_count - 1;
+  const written = new Set(
     await knex('sweep_points')
-      .insert(rows.slice(first, first + UPSERT_BATCH))
-      .onConflict(['sweep_id', 'point_index'])
-      .merge(['axis0', 'axis1', 'axis2', 'status', 'crack_boost_pa', 'full_open_boost_pa', 'error', 'result', 'updated_at']);
+      .where({ sweep_id: sweepId })
+      .whereBetween('point_index', [chunk.first_index, lastIndex])
+      .pluck<number[]>('point_index'),
+  );
+  const todo: number[] = [];
+  for (let index = chunk.first_index; index <= lastIndex; index++) if (!written.has(index)) todo.push(index);
+
+  let computed = 0;
+  let failed = 0;
+  const batchPoints = BATCH_POINTS[level];
+  for (let first = 0; first < todo.length; first += batchPoints) {
+    const rows = await compute({ sweepId, scenario, axes, level, indices: todo.slice(first, first + batchPoints) });
+    if ((await writeBatch(knex, sweepId, rows)) === 'stopped') {
+      const state = (await knex('sweeps').where({ id: sweepId }).first<{ state: string } | undefined>('state'))?.state ?? 'missing';
+      deps.logger?.debug({ sweepId, chunkIndex, computed }, 'sweep stopped; chunk left unfinished');
+      return { sweepId, chunkIndex, computed, failed, sweepState: state, skipped: 'sweep-stopped' };
+    }
+    computed += rows.length;
+    failed += rows.filter((row) => row.status === 'failed').length;
   }
 
   const sweepState = await finishChunk(knex, sweepId, chunkIndex);
-  const failed = rows.filter((row) => row.status === 'failed').length;
-  deps.logger?.debug({ sweepId, chunkIndex, computed: rows.length, failed, sweepState }, 'sweep chunk done');
-  return { sweepId, chunkIndex, computed: rows.length, failed, sweepState };
+  deps.logger?.debug({ sweepId, chunkIndex, computed, failed, sweepState }, 'sweep chunk done');
+  return { sweepId, chunkIndex, computed, failed, sweepState };
 }
 
 /** After a chunk has used up its retries, the sweep cannot finish: say so rather than leave it running. */
