@@ -41,6 +41,25 @@ describe('scenario editor', () => {
     await page.setViewportSize({ width: 1280, height: 1500 })
     await page.locator('.balance-panel').screenshot({ path: screenshotPath('balance-panel.png') })
     await page.setViewportSize({ width: 1280, height: 900 })
+    // The pull runs in a worker from the edited draft; its plots share one time axis.
+    await page.locator('[data-testid="pull-plots"] .main-svg').first().waitFor({ timeout: 30_000 })
+    await expect.poll(() => page.getByTestId('pull-status').textContent(), { timeout: 30_000 }).toBe('')
+    expect(await page.getByTestId('pull-metrics').textContent()).toContain('Pulls per bottle')
+    // Tall enough that the whole pull card is in view under the app bar for its picture.
+    await page.setViewportSize({ width: 1280, height: 1500 })
+    const plots = page.getByTestId('pull-plots')
+    await plots.scrollIntoViewIfNeeded()
+    await page.evaluate(() => window.scrollBy(0, -80))
+    const box = await plots.boundingBox()
+    if (!box) throw new Error('the pull plots have no box')
+    await page.mouse.move(box.x + box.width * 0.6, box.y + box.height * 0.3)
+    // One hover names every series at that instant, across all the stacked plots.
+    const hover = page.locator('[data-testid="pull-plots"] .hoverlayer')
+    await expect.poll(() => hover.textContent(), { timeout: 5_000 }).toContain('Shaft speed')
+    expect(await hover.textContent()).toContain('Boost')
+    await page.locator('.v-card', { has: page.getByTestId('pull-plots') }).screenshot({ path: screenshotPath('pull-panel.png') })
+    await page.setViewportSize({ width: 1280, height: 900 })
+
     await page.evaluate('window.scrollTo(0, 0)')
     await page.screenshot({ path: screenshotPath('scenario-editor-1280.png'), fullPage: true })
 
@@ -48,6 +67,7 @@ describe('scenario editor', () => {
     await page.waitForTimeout(300)
     await page.evaluate('window.scrollTo(0, 0)')
     await page.screenshot({ path: screenshotPath('scenario-editor-820.png'), fullPage: true })
+    await page.screenshot({ path: screenshotPath('scenario-editor-820-top.png') })
     expect(harness.pageErrors).toEqual([])
   })
 })

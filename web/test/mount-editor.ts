@@ -4,25 +4,27 @@ import { flushPromises } from '@vue/test-utils'
 import { defaultScenario, type Scenario } from '@crackpoint/sim-core'
 import AppShell from '@/components/AppShell.vue'
 import BalancePanel from '@/components/BalancePanel.vue'
+import PullPanel from '@/components/PullPanel.vue'
 import ScenarioForm from '@/components/ScenarioForm.vue'
 import { useScenarioStore } from '@/stores/scenario'
 import { useSessionStore } from '@/stores/session'
 import { mountApp } from './mount-app'
 
 const EDITOR = defineComponent({
-  setup() {
+  props: { withPull: { type: Boolean, default: false } },
+  setup(props) {
     const store = useScenarioStore()
-    return () => h('div', [h(ScenarioForm), h(BalancePanel, { live: store.live })])
+    return () => h('div', [h(ScenarioForm), h(BalancePanel, { live: store.live }), props.withPull ? h(PullPanel) : null])
   },
 })
 
 /**
  * The scenario form and the live balance inside the app shell (for its unit switch), with `data` open as
- * an engineer's scenario; sim-core's default scenario unless given.
+ * an engineer's scenario; sim-core's default scenario unless given. `withPull` adds the pull panel.
  */
-export async function mountEditor(data: Scenario = defaultScenario()) {
+export async function mountEditor(data: Scenario = defaultScenario(), options: { withPull?: boolean } = {}) {
   const mounted = await mountApp(RouterView, [
-    { path: '/', component: AppShell, children: [{ path: '', component: EDITOR }] },
+    { path: '/', component: AppShell, children: [{ path: '', component: EDITOR, props: { withPull: options.withPull ?? false } }] },
     { path: '/scenarios', name: 'scenarios', component: { render: () => null } },
     { path: '/sign-in', name: 'sign-in', component: { render: () => null } },
   ])

@@ -19,6 +19,10 @@ export function usePlotTheme() {
       accent: pick('accent', '#d9822b'),
       info: pick('info', '#2a6f97'),
       error: pick('error', '#b3261e'),
+      /** Extra hues for plots with many series, chosen to stay apart from the theme's own. */
+      violet: dark ? '#b79be0' : '#6a4c93',
+      green: pick('success', '#2e7d4f'),
+      olive: dark ? '#c9b458' : '#7a6a00',
       grid: dark ? '#3a4448' : '#d5dbd8',
       zeroline: dark ? '#56636a' : '#b8c2bf',
       font: { family: 'Fira Sans, system-ui, sans-serif', size: 12 },

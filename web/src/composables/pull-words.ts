@@ -1,0 +1,103 @@
+import type { PullResult, Scenario } from '@crackpoint/sim-core'
+import type { FieldQuantity } from './field-units'
+
+export interface PullLine {
+  key: string
+  label: string
+  value: string
+}
+
+export interface PullFlagWords {
+  key: string
+  tone: 'error' | 'warning' | 'info' | 'success'
+  text: string
+}
+
+type Format = (quantity: FieldQuantity, si: number, digits?: number) => string
+
+const OUTCOMES = {
+  converged: null,
+  'max-steps': 'The solver ran out of steps before the end of the pull; the figures cover the part it reached.',
+  'too-many-events': 'The valve hit its stops so often that the pull was stopped as chattering; the figures cover the part it reached.',
+} as const
+
+/** The metrics of one pull (MODEL.md §5) as lines a builder reads, in the user's units. */
+export function pullLines(result: PullResult, scenario: Scenario, f: Format): PullLine[] {
+  const m = result.metrics
+  const p = (pa: number) => f('pressure', pa)
+  const t = (s: number) => f('time', s)
+  const lines: PullLine[] = [
+    {
+      key: 'crack',
+      label: 'Cracks',
+      value: m.openAtStart
+        ? 'open from the start of the pull'
+        : m.crackBoostPa !== null && m.crackTimeS !== null
+          ? `at ${p(m.crackBoostPa)}, ${t(m.crackTimeS)} into the pull`
+          : 'never in this pull',
+    },
+    { key: 'peak', label: 'Peak boost', value: p(m.peakBoostPa) },
+    {
+      key: 'settled',
+      label: 'Settled boost',
+      value: m.settledBoostPa === null ? 'no settled stretch' : `${p(m.settledBoostPa)}${result.flags.notSettled ? ' (still moving)' : ''}`,
+    },
+  ]
+  if (m.staticBoostAtSettledLiftPa !== null) {
+    lines.push({ key: 'static', label: 'Static balance at that lift', value: `${p(m.staticBoostAtSettledLiftPa)}, which the settled boost should match` })
+  }
+  if (m.overshootPa !== null) lines.push({ key: 'overshoot', label: 'Overshoot', value: p(m.overshootPa) })
+  if (m.timeTo90PercentS !== null) lines.push({ key: 't90', label: 'Time to 90 % of settled boost', value: t(m.timeTo90PercentS) })
+  lines.push({ key: 'creep', label: 'Creep at full lift', value: m.creepPa === null ? 'none: the valve never reached full lift' : p(m.creepPa) })
+  lines.push({
+    key: 'drive',
+    label: 'Peak drive pressure',
+    value: `${p(m.peakDrivePa)}${m.driveRatioSeen === null ? '' : `, ${f('ratio', m.driveRatioSeen)} times boost`}`,
+  })
+  lines.push({ key: 'lift', label: 'Largest lift', value: `${f('percent', m.maxLiftFraction)} of full lift` })
+  if (m.gasUsedPerPullKg !== null) {
+    // A pull can draw well under a gram from a bottle; three figures keep it from reading as nothing.
+    const grams = m.gasUsedPerPullKg * 1000
+    const digits = grams >= 100 ? 0 : Math.max(0, 2 - Math.floor(Math.log10(Math.max(grams, 1e-6))))
+    lines.push({ key: 'gas', label: 'Gas per pull', value: f('gasMass', m.gasUsedPerPullKg, digits) })
+  }
+  if (m.pullsPerSupply !== null) {
+    lines.push({
+      key: 'pulls',
+      label: scenario.supply.kind === 'co2' ? 'Pulls per bottle' : 'Back-to-back pulls',
+      value: `about ${Math.floor(m.pullsPerSupply).toLocaleString('en')}`,
+    })
+  }
+  if (m.compressorDuty !== null) lines.push({ key: 'compressor', label: 'Compressor running', value: `${f('percent', m.compressorDuty)} of the pull` })
+  if (m.tankStartPa !== null && m.tankEndPa !== null && m.tankMinPa !== null) {
+    lines.push({ key: 'tank', label: 'Tank', value: `${p(m.tankStartPa)} at the start, ${p(m.tankMinPa)} at its lowest, ${p(m.tankEndPa)} at the end` })
+  }
+  return lines
+}
+
+/** The flags of a pull in plain words, worst first; a clean pull says so. */
+export function pullFlags(result: PullResult, f: Format): PullFlagWords[] {
+  const flags = result.flags
+  const words: PullFlagWords[] = []
+  const outcome = OUTCOMES[result.stats.outcome]
+  if (outcome) words.push({ key: 'outcome', tone: 'error', text: outcome })
+  if (flags.neverOpened) words.push({ key: 'never', tone: 'error', text: 'Boost never opened the valve in this pull.' })
+  if (flags.overBoostLimit) {
+    words.push({ key: 'limit', tone: 'error', text: `Boost went past the boost limit, to ${f('pressure', result.metrics.peakBoostPa)}.` })
+  }
+  if (flags.heldOpenByDrive) {
+    words.push({
+      key: 'held',
+      tone: 'warning',
+      text: 'Drive pressure alone held the valve open before boost reached its target: the spring is weak for this drive pressure.',
+    })
+  }
+  if (flags.pastZeroFlowLine) words.push({ key: 'surge', tone: 'warning', text: "Boost reached the compressor's zero-flow line: a surge risk." })
+  if (flags.supplyBelowSetpoint) {
+    words.push({ key: 'supply', tone: 'warning', text: 'The supply fell below the regulator setpoint during the pull.' })
+  }
+  if (flags.notSettled) words.push({ key: 'settle', tone: 'info', text: 'Boost or lift was still moving at the end; the settled figures are rough.' })
+  if (flags.supplyKeepsUp) words.push({ key: 'keeps-up', tone: 'success', text: 'The compressor keeps up with what the pulls draw.' })
+  if (words.length === 0) words.push({ key: 'clean', tone: 'success', text: 'Nothing to flag in this pull.' })
+  return words
+}
