@@ -63,6 +63,13 @@ describe('scenario editor', () => {
     await page.evaluate('window.scrollTo(0, 0)')
     await page.screenshot({ path: screenshotPath('scenario-editor-1280.png'), fullPage: true })
 
+    // The dark theme for a dim workshop: the drawing and the plots follow it.
+    await page.getByRole('button', { name: 'Use the dark theme' }).click()
+    await page.waitForTimeout(300)
+    await page.evaluate('window.scrollTo(0, 0)')
+    await page.screenshot({ path: screenshotPath('scenario-editor-1280-dark.png') })
+    await page.getByRole('button', { name: 'Use the light theme' }).click()
+
     await page.setViewportSize({ width: 820, height: 1180 })
     await page.waitForTimeout(300)
     await page.evaluate('window.scrollTo(0, 0)')

@@ -66,15 +66,15 @@ export function fieldFromDisplay(quantity: FieldQuantity, system: UnitSystem, va
   return toSI(fieldUnit(quantity, system), value)
 }
 
-/** Four significant figures for the units sim-core has no rounding rule for. */
-export function formatFieldQuantity(quantity: FieldQuantity, system: UnitSystem, si: number): string {
+/** Four significant figures (or `digits` decimals) for the units sim-core has no rounding rule for. */
+export function formatFieldQuantity(quantity: FieldQuantity, system: UnitSystem, si: number, digits?: number): string {
   const u = fieldUnit(quantity, system)
   const value = fromSI(u, si)
-  const text = Number.isFinite(value) ? String(Number(value.toPrecision(4))) : '—'
+  const text = !Number.isFinite(value) ? '—' : digits === undefined ? String(Number(value.toPrecision(4))) : value.toFixed(digits)
   return u.symbol ? `${text} ${u.symbol}` : text
 }
 
 /** "11.2 psi", "55 %": any field's SI value rounded for display in `system`. */
 export function formatField(quantity: FieldQuantity, system: UnitSystem, si: number, digits?: number): string {
-  return isSimQuantity(quantity) ? formatQuantity(quantity, system, si, digits) : formatFieldQuantity(quantity, system, si)
+  return isSimQuantity(quantity) ? formatQuantity(quantity, system, si, digits) : formatFieldQuantity(quantity, system, si, digits)
 }

@@ -54,7 +54,7 @@ export function pullLines(result: PullResult, scenario: Scenario, f: Format): Pu
     label: 'Peak drive pressure',
     value: `${p(m.peakDrivePa)}${m.driveRatioSeen === null ? '' : `, ${f('ratio', m.driveRatioSeen)} times boost`}`,
   })
-  lines.push({ key: 'lift', label: 'Largest lift', value: `${f('percent', m.maxLiftFraction)} of full lift` })
+  lines.push({ key: 'lift', label: 'Largest lift', value: `${f('percent', m.maxLiftFraction, 0)} of full lift` })
   if (m.gasUsedPerPullKg !== null) {
     // A pull can draw well under a gram from a bottle; three figures keep it from reading as nothing.
     const grams = m.gasUsedPerPullKg * 1000
@@ -68,7 +68,7 @@ export function pullLines(result: PullResult, scenario: Scenario, f: Format): Pu
       value: `about ${Math.floor(m.pullsPerSupply).toLocaleString('en')}`,
     })
   }
-  if (m.compressorDuty !== null) lines.push({ key: 'compressor', label: 'Compressor running', value: `${f('percent', m.compressorDuty)} of the pull` })
+  if (m.compressorDuty !== null) lines.push({ key: 'compressor', label: 'Compressor running', value: `${f('percent', m.compressorDuty, 0)} of the pull` })
   if (m.tankStartPa !== null && m.tankEndPa !== null && m.tankMinPa !== null) {
     lines.push({ key: 'tank', label: 'Tank', value: `${p(m.tankStartPa)} at the start, ${p(m.tankMinPa)} at its lowest, ${p(m.tankEndPa)} at the end` })
   }
