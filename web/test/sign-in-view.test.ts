@@ -32,6 +32,15 @@ describe('SignInView', () => {
     expect(localStorage.getItem('crackpoint.token')).toBeNull()
   })
 
+  it('shows and hides the password with a labelled button', async () => {
+    const { wrapper } = await mountApp(SignInView)
+    const toggle = wrapper.find('button[aria-label="Show password"]')
+    expect(toggle.exists()).toBe(true)
+    await toggle.trigger('click')
+    expect(wrapper.find('input[autocomplete="current-password"]').attributes('type')).toBe('text')
+    expect(wrapper.find('button[aria-label="Hide password"]').exists()).toBe(true)
+  })
+
   it('stores the token and goes to the page asked for when the API accepts', async () => {
     const user = {
       id: 'u1',
