@@ -55,6 +55,7 @@ describe('SignInView', () => {
       SignInView,
       [
         { path: '/sign-in', component: SignInView },
+        { path: '/register', component: { render: () => null } },
         { path: '/scenarios/:id', component: { render: () => null } },
       ],
       '/sign-in?next=/scenarios/abc',

@@ -18,6 +18,12 @@ const routes: RouteRecordRaw[] = [
     meta: { public: true, title: 'Sign in' },
   },
   {
+    path: '/register',
+    name: 'register',
+    component: () => import('@/views/RegisterView.vue'),
+    meta: { public: true, title: 'Start a workspace' },
+  },
+  {
     // Outside the app shell: the sheet is a page of its own, to print or save as PDF.
     path: '/scenarios/:id/sheet',
     name: 'setup-sheet',
@@ -60,7 +66,7 @@ export const router = createRouter({
 router.beforeEach(async (to) => {
   const session = useSessionStore()
   if (to.meta.public) {
-    if (to.name === 'sign-in' && session.isSignedIn) return { name: 'scenarios' }
+    if ((to.name === 'sign-in' || to.name === 'register') && session.isSignedIn) return { name: 'scenarios' }
     return true
   }
   if (!session.isSignedIn) return { name: 'sign-in', query: { next: to.fullPath } }

@@ -1,7 +1,7 @@
 import { computed, ref } from 'vue'
 import { defineStore } from 'pinia'
 import { ApiError } from '@/api/api-error'
-import { authApi } from '@/api/auth'
+import { authApi, type RegisterInput } from '@/api/auth'
 import { tokenStorage } from '@/api/token-storage'
 import type { Role, UnitSystem, User } from '@/api/types'
 
@@ -33,6 +33,14 @@ export const useSessionStore = defineStore('session', () => {
     user.value = result.user
   }
 
+  async function register(input: RegisterInput): Promise<void> {
+    const result = await authApi.register(input)
+    tokenStorage.set(result.token)
+    token.value = result.token
+    user.value = result.user
+    setUnitSystem(result.user.unitSystem)
+  }
+
   /** Loads the profile behind a stored token; a rejected token signs the user out. */
   async function ensureUser(): Promise<User | null> {
     if (!token.value) return null
@@ -57,5 +65,5 @@ export const useSessionStore = defineStore('session', () => {
     localStorage.setItem(UNIT_KEY, system)
   }
 
-  return { token, user, isSignedIn, unitSystem, canCompute, signIn, ensureUser, signOut, setUnitSystem }
+  return { token, user, isSignedIn, unitSystem, canCompute, signIn, register, ensureUser, signOut, setUnitSystem }
 })
