@@ -20,9 +20,6 @@ export interface AppDeps {
   pulls?: PullRunnerLike;
 }
 
-/** A scenario is a few kilobytes and a sweep at most 3 × 1000 values; anything far larger is a mistake. */
-const JSON_LIMIT = '1mb';
-
 export function createApp(deps: AppDeps): Express {
   const { config, knex, queue } = deps;
   const logger = deps.logger ?? createLogger(config);
@@ -43,7 +40,6 @@ export function createApp(deps: AppDeps): Express {
     }),
   );
 
-  app.use('/api', express.json({ limit: JSON_LIMIT }));
   app.use('/api', apiRoutes({ knex, queue, config, logger, pulls }));
 
   const indexHtml = join(config.webDist, 'index.html');

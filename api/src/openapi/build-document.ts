@@ -37,7 +37,8 @@ const ERROR_DESCRIPTIONS: Record<number, string> = {
   404: "Not found (also what another workspace's record answers)",
   409: 'Conflict: a stale version, a name or e-mail taken, or a part still in use',
   413: 'The body is larger than the API accepts',
-  415: 'The body is not JSON',
+  402: 'Not enough compute units left this month for what was asked',
+  415: 'The body is not in the media type the route reads (JSON unless it says otherwise)',
   422: 'Understood but cannot be done as asked (named in `fields` where a field is the cause)',
   429: 'Too many attempts; wait and try again',
   500: 'Something went wrong on the server (no details are given)',
@@ -63,6 +64,21 @@ function errorStatuses(route: AnyRoute): number[] {
   return [...statuses].sort((a, b) => a - b);
 }
 
+/** JSON by default; a form upload lists its text fields beside the file part; a raw body is any bytes. */
+function requestBody(route: AnyRoute) {
+  const kind = route.requestBody ?? { kind: 'json' as const };
+  if (kind.kind === 'raw') {
+    return { body: { required: true, content: { 'application/octet-stream': { schema: z.string() } } } };
+  }
+  if (kind.kind === 'multipart') {
+    const fields = route.body instanceof z.ZodObject ? route.body.shape : {};
+    const form = z.object({ ...fields, [kind.field]: z.string().meta({ format: 'binary', description: `at most ${kind.maxBytes} bytes` }) });
+    return { body: { required: true, content: { 'multipart/form-data': { schema: form } } } };
+  }
+  if (!route.body) return {};
+  return { body: { required: !route.bodyOptional, content: { 'application/json': { schema: route.body } } } };
+}
+
 /** The OpenAPI 3.1 description of every route of the table, made from the same zod schemas the API parses with. */
 export function buildOpenApiDocument(routes: readonly AnyRoute[]) {
   const registry = new OpenAPIRegistry();
@@ -76,10 +92,16 @@ export function buildOpenApiDocument(routes: readonly AnyRoute[]) {
 
   for (const route of routes) {
     const roles = route.access === 'public' ? 'Anyone, without signing in.' : `Roles: ${route.access.join(', ')}.`;
-    const responses: Record<string, { description: string; content?: { 'application/json': { schema: z.ZodType } } }> = {
+    const produces = route.produces ?? 'application/json';
+    const successContent = route.success.schema
+      ? { [produces]: { schema: route.success.schema } }
+      : produces === 'application/json'
+        ? undefined
+        : { [produces]: { schema: z.string() } };
+    const responses: Record<string, { description: string; content?: Record<string, { schema: z.ZodType }> }> = {
       [route.success.status]: {
         description: route.success.description,
-        ...(route.success.schema ? { content: { 'application/json': { schema: route.success.schema } } } : {}),
+        ...(successContent ? { content: successContent } : {}),
       },
     };
     for (const status of errorStatuses(route)) {
@@ -96,9 +118,7 @@ export function buildOpenApiDocument(routes: readonly AnyRoute[]) {
       request: {
         ...(route.params ? { params: route.params as z.ZodObject } : {}),
         ...(route.query ? { query: route.query as z.ZodObject } : {}),
-        ...(route.body
-          ? { body: { required: !route.bodyOptional, content: { 'application/json': { schema: route.body } } } }
-          : {}),
+        ...requestBody(route),
       },
       responses,
     });

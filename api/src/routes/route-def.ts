@@ -42,6 +42,55 @@ export const ROLES = {
   libraryEditors: ['admin', 'engineer'],
 } as const satisfies Record<string, readonly UserRole[]>;
 
+/** A file sent as multipart/form-data, held in memory (the route's `maxBytes` bounds it). */
+export interface UploadedFile {
+  fieldName: string;
+  originalName: string;
+  mimeType: string;
+  size: number;
+  buffer: Buffer;
+}
+
+/**
+ * How a route reads its request body. JSON is the default; a multipart form carries one file in
+ * `field` beside text fields that the route's `body` schema parses; a raw body is kept as bytes for a
+ * caller that must see them unchanged (a signed webhook).
+ */
+export type RequestBodyKind =
+  | { kind: 'json' }
+  | { kind: 'multipart'; field: string; maxBytes: number }
+  | { kind: 'raw'; maxBytes: number };
+
+/** What a route answers with, for the OpenAPI document; JSON unless the route streams. */
+export type Produces = 'application/json' | 'text/event-stream' | 'text/csv';
+
+/**
+ * An answer written piece by piece: the source is piped to the response with back-pressure, and closed
+ * (its `return()` called) when the client goes away, so a generator's `finally` releases what it holds.
+ */
+export class StreamReply {
+  readonly contentType: string;
+  readonly source: AsyncIterable<string | Buffer>;
+  readonly headers: Readonly<Record<string, string>>;
+  readonly status: number;
+  /** Offered to the browser as a download under this name. */
+  readonly filename: string | undefined;
+
+  constructor(options: {
+    contentType: string;
+    source: AsyncIterable<string | Buffer>;
+    headers?: Record<string, string>;
+    status?: number;
+    filename?: string;
+  }) {
+    this.contentType = options.contentType;
+    this.source = options.source;
+    this.headers = options.headers ?? {};
+    this.status = options.status ?? 200;
+    this.filename = options.filename;
+  }
+}
+
 /** A handler answers with its route's success status, or with another one through Reply. */
 export class Reply {
   constructor(
@@ -56,6 +105,16 @@ export interface HandlerInput<P, Q, B, A extends Access> {
   params: P;
   query: Q;
   body: B;
+  /** The request's headers (lower-case names), for a route that must read one (a webhook's signature). */
+  headers: Readonly<Record<string, string | string[] | undefined>>;
+  /** Aborted when the client goes away, so long work or a stream can stop early. */
+  signal: AbortSignal;
+  /** The client's address as Express sees it (rate limits, audit). */
+  ip: string;
+  /** The uploaded file of a multipart route; undefined when the form had none. */
+  file?: UploadedFile;
+  /** The exact bytes of a raw-body route. */
+  rawBody?: Buffer;
 }
 
 type Out<S> = S extends z.ZodType ? z.output<S> : undefined;
@@ -82,6 +141,10 @@ export interface RouteSpec<
   body?: B;
   /** The body may be left out entirely (a POST that only acts on its path). */
   bodyOptional?: boolean;
+  /** How the body is read; JSON when left out. */
+  requestBody?: RequestBodyKind;
+  /** The success answer's media type; JSON when left out. */
+  produces?: Produces;
   success: { status: number; description: string; schema?: z.ZodType };
   /** Other answers the route gives besides the ones every route may give (400, 401, 403, 404, 413, 415, 500). */
   errors?: readonly number[];
