@@ -45,6 +45,7 @@ const envSchema = z
     SWEEP_DYNAMIC_CHUNK_SIZE: z.coerce.number().int().min(1).max(10_000).default(20),
     RECONCILE_INTERVAL_MS: z.coerce.number().int().min(500).max(86_400_000).default(60_000),
     SWEEP_MAX_POINTS: z.coerce.number().int().min(1).max(10_000_000).default(100_000),
+    DEFAULT_WORKSPACE_MONTHLY_UNITS: z.coerce.number().int().min(0).max(1_000_000_000).default(10_000),
     SIGN_IN_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(10_000).default(10),
     SIGN_IN_ADDRESS_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(100_000).default(60),
     REGISTER_LIMIT_PER_HOUR: z.coerce.number().int().min(1).max(100_000).default(10),
@@ -79,6 +80,8 @@ export interface Config {
   /** How often unfinished chunks missing from Redis are enqueued again (the server does one pass at start-up too). */
   readonly reconcileIntervalMs: number;
   readonly sweepMaxPoints: number;
+  /** Compute units a workspace may spend each UTC month until an admin sets its own quota. */
+  readonly defaultWorkspaceMonthlyUnits: number;
   /** Failed sign-ins per account and minute. */
   readonly signInLimitPerMinute: number;
   /** Failed sign-ins per client address and minute, over all accounts. */
@@ -126,6 +129,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     sweepDynamicChunkSize: e.SWEEP_DYNAMIC_CHUNK_SIZE,
     reconcileIntervalMs: e.RECONCILE_INTERVAL_MS,
     sweepMaxPoints: e.SWEEP_MAX_POINTS,
+    defaultWorkspaceMonthlyUnits: e.DEFAULT_WORKSPACE_MONTHLY_UNITS,
     signInLimitPerMinute: e.SIGN_IN_LIMIT_PER_MINUTE,
     signInAddressLimitPerMinute: e.SIGN_IN_ADDRESS_LIMIT_PER_MINUTE,
     registerLimitPerHour: e.REGISTER_LIMIT_PER_HOUR,

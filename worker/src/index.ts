@@ -18,3 +18,4 @@ export { SWEEP_LEVELS, type SweepLevel, type PointRow } from './points/point-row
 export { PointPool, type ComputeBatch, type PointBatch } from './points/point-pool.ts';
 export { enqueueChunks, reconcileSweeps, startReconciler, type ChunkQueue, type ReconcileOutcome, type Reconciler } from './reconcile.ts';
 export { createSweepWorker, type SweepWorker, type SweepWorkerOptions } from './worker.ts';
+export { sweepComputeUnits, sweepUnitsSplit, STATIC_POINTS_PER_UNIT, UNITS_PER_DYNAMIC_PULL } from './compute-units.ts';

@@ -31,6 +31,12 @@ export class Sweep extends BaseModel {
   pointsDone!: number;
   pointsFailed!: number;
   chunkSize!: number;
+  /** The compute units reserved when the sweep was created (its estimate). */
+  computeUnits!: number;
+  /** The part of the reservation not yet spent or released; 0 once the sweep has stopped. */
+  reservedUnits!: number;
+  /** First day of the UTC month its reservation and charges count in, YYYY-MM-DD. */
+  usageMonth!: string | null;
   startedAt!: Date | null;
   finishedAt!: Date | null;
 
@@ -40,6 +46,16 @@ export class Sweep extends BaseModel {
 
   static override get jsonAttributes(): string[] {
     return ['scenarioSnapshot', 'axes'];
+  }
+
+  override $parseDatabaseJson(json: Record<string, unknown>): Record<string, unknown> {
+    const parsed = super.$parseDatabaseJson(json);
+    // pg hands a date column over as local midnight of that day.
+    const month = parsed.usageMonth;
+    if (month instanceof Date) {
+      parsed.usageMonth = `${month.getFullYear()}-${String(month.getMonth() + 1).padStart(2, '0')}-${String(month.getDate()).padStart(2, '0')}`;
+    }
+    return parsed;
   }
 
   static override modifiers: Modifiers<QueryBuilder<Sweep>> = {

@@ -6,6 +6,7 @@ import { openApiRoutes } from './openapi.ts';
 import type { AnyRoute } from './route-def.ts';
 import { scenarioRoutes } from './scenarios.ts';
 import { sweepRoutes } from './sweeps.ts';
+import { usageRoutes } from './usage.ts';
 
 /**
  * Every route of the API. The router, the OpenAPI document and the authorization matrix are all built
@@ -19,4 +20,5 @@ export const routeTable: readonly AnyRoute[] = [
   ...balanceRoutes,
   ...sweepRoutes,
   ...libraryRoutes,
+  ...usageRoutes,
 ];

@@ -127,7 +127,7 @@ export const scenarioRoutes = [
     body: emptyBodySchema,
     bodyOptional: true,
     success: { status: 200, description: 'The pull: series over time, metrics, flags, solver statistics and notes', schema: pullResponseSchema },
-    errors: [422, 503],
-    handler: ({ deps, auth, params }) => runScenarioPull(deps, auth.workspaceId, params.id),
+    errors: [402, 422, 503],
+    handler: ({ deps, auth, params }) => runScenarioPull(deps, auth, params.id),
   }),
 ];

@@ -8,7 +8,8 @@ import {
   sweepResponseSchema,
 } from '../schemas/sweeps.ts';
 import { emptyBodySchema } from '../schemas/pulls.ts';
-import { cancelSweep, createSweep, getSurface, getSweep, listSweeps } from '../services/sweeps.ts';
+import { sweepEstimateResponseSchema } from '../schemas/usage.ts';
+import { cancelSweep, createSweep, estimateSweep, getSurface, getSweep, listSweeps } from '../services/sweeps.ts';
 import { defineRoute, ROLES } from './route-def.ts';
 
 export const sweepRoutes = [
@@ -21,8 +22,21 @@ export const sweepRoutes = [
     access: ROLES.compute,
     scope: 'reference',
     body: createSweepBodySchema,
-    success: { status: 201, description: 'Queued', schema: sweepResponseSchema },
+    success: { status: 201, description: 'Queued; its estimated compute units are reserved from this month\'s quota', schema: sweepResponseSchema },
+    errors: [402],
     handler: async ({ deps, auth, body }) => ({ sweep: await createSweep(deps, auth, body) }),
+  }),
+  defineRoute({
+    id: 'estimateSweep',
+    method: 'post',
+    path: '/sweeps/estimate',
+    summary: 'What a sweep would cost in compute units and what is left this month; nothing is created or reserved',
+    tag: 'Sweeps',
+    access: ROLES.compute,
+    scope: 'reference',
+    body: createSweepBodySchema,
+    success: { status: 200, description: 'The estimate', schema: sweepEstimateResponseSchema },
+    handler: async ({ deps, auth, body }) => ({ estimate: await estimateSweep(deps, auth, body) }),
   }),
   defineRoute({
     id: 'listSweeps',

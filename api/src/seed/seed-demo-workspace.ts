@@ -6,6 +6,8 @@ import type { UserRole } from '../models/index.ts';
 /** The invented demo shop; every member signs in with DEMO_PASSWORD. */
 export const DEMO_WORKSPACE = { name: 'Harrow Lane Boostworks', slug: 'harrow-lane-boostworks' } as const;
 export const DEMO_PASSWORD = 'crackpoint-demo';
+/** The demo shop's monthly compute quota: room for a few thousand dynamic pulls. */
+export const DEMO_MONTHLY_COMPUTE_UNITS = 20_000;
 export const DEMO_SCENARIO_NAME = 'Demo: 2.0 L four, single gate, bottom port on boost';
 
 export const DEMO_USERS: readonly { email: string; displayName: string; role: UserRole }[] = [
@@ -76,6 +78,12 @@ export async function seedDemoWorkspace(knex: Knex, options: { bcryptCost?: numb
           .returning<{ id: string }[]>('id')
       )[0]?.id;
     if (!scenarioId) throw new Error('the demo scenario was not written');
+
+    // A quota of its own, so the usage page shows one the admin set; one the shop changed stays as it is.
+    const quota = await trx('quotas').where({ workspace_id: workspace.id }).whereNull('user_id').first<{ id: string } | undefined>('id');
+    if (!quota) {
+      await trx('quotas').insert({ workspace_id: workspace.id, user_id: null, monthly_compute_units: DEMO_MONTHLY_COMPUTE_UNITS, set_by: userIds.admin });
+    }
 
     return { workspaceId: workspace.id, userIds, scenarioId };
   });

@@ -2,16 +2,23 @@ import type { PullResult } from '@crackpoint/sim-core';
 import { AppError } from '../errors/index.ts';
 import type { ApiDeps } from '../routes/route-def.ts';
 import type { PullResponse } from '../schemas/pulls.ts';
+import type { AuthContext } from './auth.ts';
+import { withServerPullCharge } from './compute-units.ts';
 import { PullFailedError, PullTimeoutError } from './pull/pull-runner.ts';
 import { storedScenarioData } from './scenario-data.ts';
 import { findScenario } from './scenarios.ts';
 
 /**
  * One dynamic pull of a stored scenario, computed while the request waits. "Small" is enforced before it
- * starts (samples of the series, integrator steps) and the whole answer is bounded in time.
+ * starts (samples of the series, integrator steps) and the whole answer is bounded in time. It costs one
+ * compute unit, charged to the caller before it runs (402 when none is left) and taken back if it fails.
  */
-export async function runScenarioPull(deps: Pick<ApiDeps, 'knex' | 'config' | 'pulls'>, workspaceId: string, id: string): Promise<PullResponse> {
-  const scenario = await findScenario(deps.knex, workspaceId, id);
+export async function runScenarioPull(
+  deps: Pick<ApiDeps, 'knex' | 'config' | 'pulls'>,
+  auth: Pick<AuthContext, 'workspaceId' | 'userId'>,
+  id: string,
+): Promise<PullResponse> {
+  const scenario = await findScenario(deps.knex, auth.workspaceId, id);
   const data = storedScenarioData(scenario.data);
   const { config } = deps;
 
@@ -27,7 +34,7 @@ export async function runScenarioPull(deps: Pick<ApiDeps, 'knex' | 'config' | 'p
 
   let pull: PullResult;
   try {
-    pull = await deps.pulls.run(bounded);
+    pull = await withServerPullCharge(deps, auth, { scenarioId: scenario.id }, () => deps.pulls.run(bounded));
   } catch (error) {
     if (error instanceof PullTimeoutError) {
       throw new AppError(

@@ -17,7 +17,9 @@ import {
   type SurfaceQuery,
   type SweepView,
 } from '../schemas/sweeps.ts';
+import type { SweepEstimate } from '../schemas/usage.ts';
 import type { AuthContext } from './auth.ts';
+import { assertUnitsAvailable, estimateSweepUnits, lockWorkspaceUnits, readMonthUnits, usableBy, usageMonthOf } from './compute-units.ts';
 import { findScenario } from './scenarios.ts';
 
 /** What the API needs of the sweep queue: enqueue chunks and report its health. */
@@ -70,7 +72,8 @@ function issuesToFields(issues: { path: string; message: string }[]): FieldError
   return fields;
 }
 
-export async function createSweep(deps: SweepDeps, auth: AuthContext, input: CreateSweepBody): Promise<SweepView> {
+/** A sweep as it would be created: its scenario, resolved axes, size and cost, checked but not written. */
+async function planSweep(deps: SweepDeps, auth: AuthContext, input: CreateSweepBody) {
   const scenario = await findScenario(deps.knex, auth.workspaceId, input.scenarioId);
   const resolved = resolveAxes(scenario.data, input.axes);
   if (!resolved.ok) throw AppError.validation(issuesToFields(resolved.issues), 'The sweep axes are not valid.');
@@ -84,10 +87,26 @@ export async function createSweep(deps: SweepDeps, auth: AuthContext, input: Cre
     );
   }
   const chunkSize = input.level === 'static' ? deps.config.sweepChunkSize : deps.config.sweepDynamicChunkSize;
-  const chunkCount = Math.ceil(pointCount / chunkSize);
+  return { scenario, axes, pointCount, chunkSize, chunkCount: Math.ceil(pointCount / chunkSize), computeUnits: estimateSweepUnits(input.level, pointCount) };
+}
 
-  // The sweep and every chunk row exist together or not at all; the workers trust both.
+/** What a sweep would cost and what the caller and the workspace have left this month; nothing is reserved. */
+export async function estimateSweep(deps: SweepDeps, auth: AuthContext, input: CreateSweepBody): Promise<SweepEstimate> {
+  const plan = await planSweep(deps, auth, input);
+  const units = await readMonthUnits(deps.knex, deps.config, auth.workspaceId, usageMonthOf(new Date()));
+  const left = usableBy(units, auth.userId);
+  return { pointCount: plan.pointCount, computeUnits: plan.computeUnits, remaining: { member: left.member, workspace: left.workspace } };
+}
+
+export async function createSweep(deps: SweepDeps, auth: AuthContext, input: CreateSweepBody): Promise<SweepView> {
+  const { scenario, axes, pointCount, chunkSize, chunkCount, computeUnits } = await planSweep(deps, auth, input);
+  const usageMonth = usageMonthOf(new Date());
+
+  // The sweep, every chunk row and the sweep's reservation exist together or not at all; the workers
+  // trust all three. The units lock makes check and reservation one step for the whole workspace.
   const sweep = await deps.knex.transaction(async (trx) => {
+    await lockWorkspaceUnits(trx, auth.workspaceId);
+    assertUnitsAvailable(await readMonthUnits(trx, deps.config, auth.workspaceId, usageMonth), auth.userId, computeUnits, 'This sweep');
     const row = await Sweep.query(trx).insertAndFetch({
       workspaceId: auth.workspaceId,
       scenarioId: scenario.id,
@@ -98,6 +117,9 @@ export async function createSweep(deps: SweepDeps, auth: AuthContext, input: Cre
       state: 'queued',
       pointCount,
       chunkSize,
+      computeUnits,
+      reservedUnits: computeUnits,
+      usageMonth,
     });
     const chunks = Array.from({ length: chunkCount }, (_, chunkIndex) => ({
       sweep_id: row.id,
@@ -144,7 +166,8 @@ export async function cancelSweep(deps: SweepDeps, auth: AuthContext, id: string
     if (row.state !== 'queued' && row.state !== 'running') {
       throw new AppError(409, 'sweep_finished', `The sweep is already ${row.state}; only a queued or running sweep can be cancelled.`);
     }
-    return row.$query(trx).patchAndFetch({ state: 'cancelled', finishedAt: new Date() });
+    // Points already computed stay charged; the units of those never run go back to the workspace.
+    return row.$query(trx).patchAndFetch({ state: 'cancelled', reservedUnits: 0, finishedAt: new Date() });
   });
 
   const open = await deps.knex('sweep_chunks').where({ sweep_id: sweep.id }).whereNot({ state: 'done' }).pluck<number[]>('chunk_index');

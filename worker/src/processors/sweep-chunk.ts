@@ -3,8 +3,9 @@ import { UnrecoverableError } from 'bullmq';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
 import { z } from 'zod';
+import { sweepUnitsSplit } from '../compute-units.ts';
 import type { ComputeBatch, PointBatch } from '../points/point-pool.ts';
-import { computePointRow, POINT_ROW_UPDATE_COLUMNS, SWEEP_LEVELS, type PointRow } from '../points/point-row.ts';
+import { computePointRow, POINT_ROW_UPDATE_COLUMNS, SWEEP_LEVELS, type PointRow, type SweepLevel } from '../points/point-row.ts';
 import { sweepChunkJobSchema } from '../queues.ts';
 
 export { computePointRow, type PointRow } from '../points/point-row.ts';
@@ -66,20 +67,80 @@ async function recount(trx: Knex.Transaction, sweepId: string): Promise<{ done: 
   return { done: Number(counts?.done ?? 0), failed: Number(counts?.failed ?? 0) };
 }
 
+/** The sweep row as the batch and finish steps read it, under its lock. */
+interface LockedSweep {
+  state: string;
+  level: SweepLevel;
+  workspace_id: string;
+  created_by: string | null;
+  compute_units: number;
+  usage_month: string | null;
+}
+
+async function lockSweep(trx: Knex.Transaction, sweepId: string): Promise<LockedSweep | undefined> {
+  return trx('sweeps')
+    .where({ id: sweepId })
+    .forUpdate()
+    .first<LockedSweep | undefined>(
+      'state',
+      'level',
+      'workspace_id',
+      'created_by',
+      'compute_units',
+      // As text: a date column would come back as a Date at local midnight.
+      trx.raw("to_char(coalesce(usage_month, date_trunc('month', created_at at time zone 'UTC')), 'YYYY-MM-DD') as usage_month"),
+    );
+}
+
+/**
+ * Books what the sweep's computed points cost and lowers its reservation, inside the transaction that
+ * wrote the points and under the sweep row's lock. The charge is the cost of every ok point less what
+ * the ledger already holds for the sweep, so a repeated chunk (its points upserted to the same rows,
+ * the counters recounted to the same numbers) books nothing more. Failed points cost nothing.
+ */
+async function chargeSweep(
+  trx: Knex.Transaction,
+  sweepId: string,
+  sweep: LockedSweep,
+  counts: { done: number; failed: number },
+  finished: boolean,
+): Promise<void> {
+  const split = sweepUnitsSplit(sweep.level, sweep.compute_units, counts.done, counts.failed);
+  const booked = await trx('usage_ledger')
+    .where({ sweep_id: sweepId, kind: 'sweep' })
+    .first<{ units: string | null }>(trx.raw('sum(compute_units) as units'));
+  const charge = split.spent - Number(booked?.units ?? 0);
+  if (charge > 0) {
+    await trx('usage_ledger').insert({
+      workspace_id: sweep.workspace_id,
+      user_id: sweep.created_by,
+      kind: 'sweep',
+      compute_units: charge,
+      period_month: sweep.usage_month,
+      sweep_id: sweepId,
+      note: `${counts.done - counts.failed} points computed`,
+    });
+  }
+  await trx('sweeps')
+    .where({ id: sweepId })
+    .update({ reserved_units: finished ? 0 : split.reserved });
+}
+
 /**
  * Writes one batch unless the sweep was stopped meanwhile. The sweep row is locked first: a cancel
  * (an update of that row) either committed before, and nothing is written, or waits until this batch
- * is in, so no point lands after a cancel.
+ * is in, so no point lands after a cancel. The batch's spend is booked in the same transaction.
  */
 async function writeBatch(knex: Knex, sweepId: string, rows: PointRow[]): Promise<'written' | 'stopped'> {
   return knex.transaction(async (trx) => {
-    const sweep = await trx('sweeps').where({ id: sweepId }).forUpdate().first<{ state: string } | undefined>('state');
+    const sweep = await lockSweep(trx, sweepId);
     if (!sweep || STOPPED_STATES.includes(sweep.state)) return 'stopped';
     await trx('sweep_points').insert(rows).onConflict(['sweep_id', 'point_index']).merge([...POINT_ROW_UPDATE_COLUMNS]);
     const counts = await recount(trx, sweepId);
     await trx('sweeps')
       .where({ id: sweepId })
       .update({ points_done: counts.done, points_failed: counts.failed, updated_at: trx.fn.now() });
+    await chargeSweep(trx, sweepId, sweep, counts, false);
     return 'written';
   });
 }
@@ -90,7 +151,7 @@ async function writeBatch(knex: Knex, sweepId: string, rows: PointRow[]): Promis
  */
 async function finishChunk(knex: Knex, sweepId: string, chunkIndex: number): Promise<string> {
   return knex.transaction(async (trx) => {
-    const sweep = await trx('sweeps').where({ id: sweepId }).forUpdate().first<{ state: string } | undefined>('state');
+    const sweep = await lockSweep(trx, sweepId);
     if (!sweep) return 'missing';
     await trx('sweep_chunks')
       .where({ sweep_id: sweepId, chunk_index: chunkIndex })
@@ -114,6 +175,9 @@ async function finishChunk(knex: Knex, sweepId: string, chunkIndex: number): Pro
         finished_at: allDone || stopped ? trx.raw('coalesce(finished_at, now())') : null,
         updated_at: trx.fn.now(),
       });
+    // A stopped sweep's spend stands as its last batch booked it; a finished one releases what is left.
+    if (!stopped) await chargeSweep(trx, sweepId, sweep, counts, allDone);
+    else await trx('sweeps').where({ id: sweepId }).update({ reserved_units: 0 });
     return state;
   });
 }
@@ -195,8 +259,9 @@ export async function processSweepChunk(deps: SweepChunkDeps, payload: unknown):
 
 /** After a chunk has used up its retries, the sweep cannot finish: say so rather than leave it running. */
 export async function markSweepFailed(knex: Knex, sweepId: string): Promise<void> {
+  // Points it computed stay charged; the reservation of the rest goes back to the workspace.
   await knex('sweeps')
     .where({ id: sweepId })
     .whereIn('state', ['queued', 'running'])
-    .update({ state: 'failed', finished_at: knex.fn.now(), updated_at: knex.fn.now() });
+    .update({ state: 'failed', reserved_units: 0, finished_at: knex.fn.now(), updated_at: knex.fn.now() });
 }
