@@ -48,6 +48,20 @@ const routes: RouteRecordRaw[] = [
         props: true,
         meta: { title: 'Scenario' },
       },
+      { path: 'library', redirect: { name: 'library', params: { kind: 'wastegates' } } },
+      {
+        path: 'library/:kind',
+        name: 'library',
+        component: () => import('@/views/LibraryView.vue'),
+        props: true,
+        meta: { title: 'Library' },
+      },
+      {
+        path: 'usage',
+        name: 'usage',
+        component: () => import('@/views/UsageView.vue'),
+        meta: { title: 'Usage' },
+      },
       {
         path: ':pathMatch(.*)*',
         name: 'not-found',

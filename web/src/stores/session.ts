@@ -9,6 +9,8 @@ const UNIT_KEY = 'crackpoint.unitSystem'
 
 /** Roles that may create and run scenarios and sweeps (DESIGN.md, roles table). */
 const COMPUTE_ROLES: readonly Role[] = ['admin', 'engineer', 'builder']
+/** Roles that may change the shared hardware library (DESIGN.md, roles table). */
+const LIBRARY_EDIT_ROLES: readonly Role[] = ['admin', 'engineer']
 
 function storedUnitSystem(): UnitSystem | null {
   const value = localStorage.getItem(UNIT_KEY)
@@ -25,6 +27,7 @@ export const useSessionStore = defineStore('session', () => {
   /** The user's own choice on this device wins over the profile's default. */
   const unitSystem = computed<UnitSystem>(() => unitChoice.value ?? user.value?.unitSystem ?? 'us')
   const canCompute = computed(() => user.value !== null && COMPUTE_ROLES.includes(user.value.role))
+  const canEditLibrary = computed(() => user.value !== null && LIBRARY_EDIT_ROLES.includes(user.value.role))
 
   async function signIn(email: string, password: string): Promise<void> {
     const result = await authApi.signIn(email, password)
@@ -65,5 +68,5 @@ export const useSessionStore = defineStore('session', () => {
     localStorage.setItem(UNIT_KEY, system)
   }
 
-  return { token, user, isSignedIn, unitSystem, canCompute, signIn, register, ensureUser, signOut, setUnitSystem }
+  return { token, user, isSignedIn, unitSystem, canCompute, canEditLibrary, signIn, register, ensureUser, signOut, setUnitSystem }
 })
