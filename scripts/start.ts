@@ -6,6 +6,7 @@ import { CleanupStack } from './lib/cleanup-stack.ts'
 import { parseConfig } from './lib/config.ts'
 import { demoAccounts } from './lib/demo-accounts.ts'
 import { isPortOpen } from './lib/is-port-open.ts'
+import { startMailCatcher } from './lib/mail-catcher.ts'
 import { runMain } from './lib/run-main.ts'
 import { ScriptError } from './lib/script-error.ts'
 import { seedDemo } from './lib/seed-demo.ts'
@@ -54,6 +55,14 @@ runMain(async () => {
     cleanup.push('stop PostgreSQL and Redis', () => services.stop(started))
     checkStop()
 
+    if (await isPortOpen(config.mail.host, config.mail.port)) {
+      throw new ScriptError(`Port ${config.mail.port} for the mail catcher is taken; stop that program or set ${config.mail.portSetting}.`)
+    }
+    const mail = await startMailCatcher({ host: config.mail.host, port: config.mail.port, dir: config.mail.dir })
+    cleanup.push('stop the mail catcher', () => mail.close())
+    say(`Mail catcher on smtp://${mail.host}:${mail.port}: e-mail the app sends is saved in ${mail.dir}, never delivered`)
+    checkStop()
+
     const { applied } = await runMigrations({ databaseUrl: config.databaseUrl })
     say(applied.length === 0 ? 'Database is up to date' : `Applied ${applied.length} migration(s)`)
     checkStop()
@@ -77,6 +86,7 @@ runMain(async () => {
       HOST: config.api.host,
       PORT: String(config.api.port),
       WEB_DIST: config.webDist,
+      SMTP_URL: `smtp://${mail.host}:${mail.port}`,
     }
     cleanup.push('stop the API and the worker', () => children.stopAll())
     children.spawn('api', [process.execPath, '--import', 'tsx', join('api', 'src', 'server.ts')], { cwd: config.repoRoot, env })

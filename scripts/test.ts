@@ -6,6 +6,7 @@ import { CleanupStack } from './lib/cleanup-stack.ts'
 import { fallbackClusterRoot } from './lib/cluster-location.ts'
 import { parseConfig } from './lib/config.ts'
 import { findTestFiles } from './lib/find-test-files.ts'
+import { startMailCatcher } from './lib/mail-catcher.ts'
 import { repoRoot } from './lib/repo-root.ts'
 import { runCommand } from './lib/run-command.ts'
 import { runMain } from './lib/run-main.ts'
@@ -116,6 +117,12 @@ runMain(async () => {
     await services.start()
     cleanup.push('stop the test services', () => services.stop())
 
+    // E-mail the suites send lands in the run's folder; tests read it from CRACKPOINT_MAIL_DIR.
+    const mail = await startMailCatcher({ host: config.mail.host, port: config.mail.port, dir: config.mail.dir }).catch((error: unknown) => {
+      throw new ScriptError(`The mail catcher could not listen on port ${config.mail.port} (${error instanceof Error ? error.message : String(error)}); set ${config.mail.portSetting} to a free port.`)
+    })
+    cleanup.push('stop the mail catcher', () => mail.close())
+
     const { applied } = await runMigrations({ databaseUrl: config.databaseUrl })
     say(`Applied ${applied.length} migration(s)`)
 
@@ -140,6 +147,8 @@ runMain(async () => {
       CHROMIUM_PATH: config.chromiumPath,
       WEB_DIST: config.webDist,
       TMPDIR: suiteTmp,
+      SMTP_URL: `smtp://${mail.host}:${mail.port}`,
+      CRACKPOINT_MAIL_DIR: mail.dir,
     }
     for (const suite of selected) {
       if (stopSignal !== null) break

@@ -54,6 +54,17 @@ const envSchema = z
     PULL_MAX_STEPS: z.coerce.number().int().min(100).max(10_000_000).default(200_000),
     PULL_MAX_SAMPLES: z.coerce.number().int().min(2).max(1_000_000).default(3001),
     CHANGE_PASSWORD_LIMIT_PER_15_MINUTES: z.coerce.number().int().min(1).max(10_000).default(10),
+    SMTP_URL: z
+      .url({ protocol: /^smtps?$/, error: 'must be an smtp:// or smtps:// URL' })
+      .default('smtp://127.0.0.1:55025'),
+    MAIL_FROM: z.string().min(3).default('Crackpoint <no-reply@crackpoint.invalid>'),
+    PUBLIC_URL: z
+      .url({ protocol: /^https?$/, error: 'must be an http:// or https:// URL' })
+      .default('http://127.0.0.1:8080')
+      .transform((url) => url.replace(/\/+$/, '')),
+    PASSWORD_RESET_LIMIT_PER_HOUR: z.coerce.number().int().min(1).max(100_000).default(20),
+    SHARED_VIEW_LIMIT_PER_MINUTE: z.coerce.number().int().min(1).max(100_000).default(120),
+    NOTIFY_INTERVAL_MS: z.coerce.number().int().min(200).max(86_400_000).default(15_000),
   })
   .superRefine((env, ctx) => {
     if (env.NODE_ENV === 'production' && env.JWT_SECRET === DEV_JWT_SECRET) {
@@ -97,6 +108,17 @@ export interface Config {
   readonly pullMaxSteps: number;
   /** Samples of a pull's series; a longer pull or a finer sampling is refused. */
   readonly pullMaxSamples: number;
+  /** Where e-mail is handed over: the local mail catcher by default, a hosted provider in production. */
+  readonly smtpUrl: string;
+  readonly mailFrom: string;
+  /** The web app's address as people reach it, without a trailing slash: links in e-mail start with it. */
+  readonly publicUrl: string;
+  /** Reset requests per client address and hour (each e-mail address is held to fewer, see rate-limits.ts). */
+  readonly passwordResetLimitPerHour: number;
+  /** Requests to shared links per client address and minute. */
+  readonly sharedViewLimitPerMinute: number;
+  /** How often the API looks for finished sweeps whose creators want an e-mail. */
+  readonly notifyIntervalMs: number;
 }
 
 export class ConfigError extends Error {
@@ -138,5 +160,11 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     pullTimeLimitMs: e.PULL_TIME_LIMIT_MS,
     pullMaxSteps: e.PULL_MAX_STEPS,
     pullMaxSamples: e.PULL_MAX_SAMPLES,
+    smtpUrl: e.SMTP_URL,
+    mailFrom: e.MAIL_FROM,
+    publicUrl: e.PUBLIC_URL,
+    passwordResetLimitPerHour: e.PASSWORD_RESET_LIMIT_PER_HOUR,
+    sharedViewLimitPerMinute: e.SHARED_VIEW_LIMIT_PER_MINUTE,
+    notifyIntervalMs: e.NOTIFY_INTERVAL_MS,
   });
 }

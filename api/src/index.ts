@@ -15,3 +15,6 @@ export { PullRunner, PullTimeoutError, PullFailedError, type PullRunnerLike, typ
 export { routeTable, allows, ROLES, type AnyRoute, type Access, type Scope } from './routes/index.ts';
 // The records later features build on, for scripts and tests that write them directly.
 export { Invitation, ShareLink, Upload, UsageEntry, Quota, AuditEntry } from './models/index.ts';
+export { deliverSweepNotices, startSweepNotices } from './services/sweep-notices.ts';
+export { closeMailer } from './services/mail/mailer.ts';
+export { hashSecret } from './services/secret-token.ts';

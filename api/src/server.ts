@@ -5,7 +5,9 @@ import { createApp } from './app.ts';
 import { loadConfig } from './config.ts';
 import { createKnex } from './db.ts';
 import { createLogger } from './logger.ts';
+import { closeMailer } from './services/mail/mailer.ts';
 import { PullRunner } from './services/pull/pull-runner.ts';
+import { startSweepNotices } from './services/sweep-notices.ts';
 
 const config = loadConfig();
 const logger = createLogger(config);
@@ -20,6 +22,9 @@ queue.on('error', (error) => logger.warn({ err: error }, 'sweep queue error'));
 
 // Chunks PostgreSQL holds unfinished but Redis lost are enqueued again, now and periodically.
 const reconciler = startReconciler({ knex, queue, intervalMs: config.reconcileIntervalMs, logger });
+
+// "Your sweep finished" e-mails: an outbox in PostgreSQL, safe to run in every API process at once.
+const notices = startSweepNotices({ knex, config, logger, intervalMs: config.notifyIntervalMs });
 
 const pulls = new PullRunner({ threads: config.pullThreads, timeLimitMs: config.pullTimeLimitMs });
 const app = createApp({ knex, queue, config, logger, pulls });
@@ -45,6 +50,8 @@ async function shutdown(signal: string): Promise<void> {
   await new Promise<void>((resolve) => server.close(() => resolve()));
   await pulls.close();
   await reconciler.stop();
+  await notices.stop();
+  closeMailer(config);
   await queue.close().catch((error: unknown) => logger.warn({ err: error }, 'closing the queue failed'));
   await redis.quit().catch(() => redis.disconnect());
   await knex.destroy();

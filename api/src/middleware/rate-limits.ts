@@ -11,6 +11,9 @@ function emailOf(req: Request): string {
     : '';
 }
 
+/** Reset e-mails one account may be sent in an hour. */
+export const PASSWORD_RESETS_PER_ACCOUNT_PER_HOUR = 5;
+
 function tooMany(message: string): RequestHandler {
   return (_req, res) => {
     const { status, body } = toErrorResponse(new AppError(429, 'too_many_attempts', message));
@@ -62,6 +65,33 @@ export function createLimiters(config: Config): Record<LimiterName, RequestHandl
       skipSuccessfulRequests: true,
       keyGenerator: (req) => `password|${req.auth?.userId ?? ipKeyGenerator(req.ip ?? '')}`,
       handler: tooMany('Too many attempts to change the password. Wait a quarter of an hour and try again.'),
+    }),
+    // Reset e-mails: a few per address an hour, so the form cannot flood one mailbox, and more per client
+    // address, so it cannot be used to mail everyone. Refused (invalid) requests do not count.
+    passwordResetPerAccount: rateLimit({
+      ...common,
+      windowMs: 3_600_000,
+      limit: PASSWORD_RESETS_PER_ACCOUNT_PER_HOUR,
+      skipFailedRequests: true,
+      skip: (req) => emailOf(req) === '',
+      keyGenerator: (req) => `reset-account|${emailOf(req)}`,
+      handler: tooMany('Too many reset e-mails for this address. Use the newest one, or try again in an hour.'),
+    }),
+    passwordResetPerAddress: rateLimit({
+      ...common,
+      windowMs: 3_600_000,
+      limit: config.passwordResetLimitPerHour,
+      skipFailedRequests: true,
+      keyGenerator: (req) => `reset-address|${ipKeyGenerator(req.ip ?? '')}`,
+      handler: tooMany('Too many password resets from this address. Try again in an hour.'),
+    }),
+    // Shared links are public: one address reading many pages of results is slowed, a person is not.
+    sharedView: rateLimit({
+      ...common,
+      windowMs: 60_000,
+      limit: config.sharedViewLimitPerMinute,
+      keyGenerator: (req) => `shared|${ipKeyGenerator(req.ip ?? '')}`,
+      handler: tooMany('Too many requests for shared links from this address. Wait a minute and try again.'),
     }),
   };
 }

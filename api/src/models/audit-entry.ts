@@ -1,6 +1,21 @@
 import { BaseModel } from './base-model.ts';
 
-export type AuditAction = 'create' | 'update' | 'delete' | 'archive' | 'unarchive' | 'clone' | 'register' | 'change_password';
+export type AuditAction =
+  | 'create'
+  | 'update'
+  | 'delete'
+  | 'archive'
+  | 'unarchive'
+  | 'clone'
+  | 'register'
+  | 'change_password'
+  | 'invite'
+  | 'revoke'
+  | 'accept_invitation'
+  | 'change_role'
+  | 'reset_password'
+  | 'share'
+  | 'send_share';
 
 export interface AuditChange {
   from?: unknown;

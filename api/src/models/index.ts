@@ -15,3 +15,4 @@ export { ShareLink, SHARE_TARGETS, type ShareTarget } from './share-link.ts';
 export { Upload, UPLOAD_KINDS, type UploadKind } from './upload.ts';
 export { UsageEntry, USAGE_KINDS, type UsageKind } from './usage-entry.ts';
 export { Quota } from './quota.ts';
+export { PasswordReset } from './password-reset.ts';

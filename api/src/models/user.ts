@@ -19,6 +19,8 @@ export class User extends BaseModel {
   unitSystem!: UnitSystem;
   /** Raised to end every session of the member; tokens carry the version they were made under. */
   tokenVersion!: number;
+  /** Since when the member wants an e-mail as their sweeps finish; null for none. */
+  sweepNoticeSince!: Date | null;
 
   workspace?: Workspace;
 

@@ -31,7 +31,14 @@ export type Access = 'public' | readonly UserRole[];
  */
 export type Scope = 'object' | 'reference' | 'collection' | 'self' | 'public';
 
-export type LimiterName = 'signInPerAddress' | 'signInPerAccount' | 'register' | 'changePassword';
+export type LimiterName =
+  | 'signInPerAddress'
+  | 'signInPerAccount'
+  | 'register'
+  | 'changePassword'
+  | 'passwordResetPerAddress'
+  | 'passwordResetPerAccount'
+  | 'sharedView';
 
 /** Role sets of DESIGN.md's table, named once so every route says which rule it follows. */
 export const ROLES = {
@@ -40,6 +47,10 @@ export const ROLES = {
   compute: ['admin', 'engineer', 'builder'],
   /** Edit the shared hardware library. */
   libraryEditors: ['admin', 'engineer'],
+  /** Members, roles and invitations. */
+  admins: ['admin'],
+  /** Create, send and revoke read-only share links (DESIGN.md: analysts share too; builders do not). */
+  sharers: ['admin', 'engineer', 'analyst'],
 } as const satisfies Record<string, readonly UserRole[]>;
 
 /** A file sent as multipart/form-data, held in memory (the route's `maxBytes` bounds it). */

@@ -5,7 +5,9 @@ import { libraryRoutes } from './library.ts';
 import { openApiRoutes } from './openapi.ts';
 import type { AnyRoute } from './route-def.ts';
 import { scenarioRoutes } from './scenarios.ts';
+import { sharingRoutes } from './sharing.ts';
 import { sweepRoutes } from './sweeps.ts';
+import { teamRoutes } from './team.ts';
 import { usageRoutes } from './usage.ts';
 
 /**
@@ -21,4 +23,6 @@ export const routeTable: readonly AnyRoute[] = [
   ...sweepRoutes,
   ...libraryRoutes,
   ...usageRoutes,
+  ...teamRoutes,
+  ...sharingRoutes,
 ];

@@ -1,6 +1,7 @@
 import { ROLES as ROLE_SETS } from '@crackpoint/api';
 import { defaultScenario } from '@crackpoint/sim-core';
 import { TEST_PASSWORD, type Role, type TestWorkspace } from './context.ts';
+import { mailSharingFixtures } from './fixtures-mail-sharing.ts';
 import { quotasUsageFixtures } from './fixtures-quotas-usage.ts';
 import { LIBRARY_TABLES, PART_SAMPLES, type LibraryTable, type Side, type World } from './world.ts';
 
@@ -111,6 +112,7 @@ export const routeFixtures: Record<string, RouteFixture> = {
     }),
   },
   ...quotasUsageFixtures,
+  ...mailSharingFixtures,
 };
 
 /** Route ids of a library kind, as the API names them (listSprings, getSpring, …). */
