@@ -8,6 +8,7 @@ import type { Config } from './config.ts';
 import { AppError, errorMiddleware } from './errors/index.ts';
 import { createLogger } from './logger.ts';
 import { apiRoutes } from './routes/index.ts';
+import { FitRunner, type FitRunnerLike } from './services/datalogs/fit-runner.ts';
 import { PullRunner, type PullRunnerLike } from './services/pull/pull-runner.ts';
 import type { SweepQueue } from './services/sweeps.ts';
 
@@ -18,12 +19,15 @@ export interface AppDeps {
   logger?: Logger;
   /** Computes pulls; made from the config when left out (its idle threads never hold the process open). */
   pulls?: PullRunnerLike;
+  /** Computes datalog fits; made from the config when left out (idle threads never hold the process open either). */
+  fits?: FitRunnerLike;
 }
 
 export function createApp(deps: AppDeps): Express {
   const { config, knex, queue } = deps;
   const logger = deps.logger ?? createLogger(config);
   const pulls = deps.pulls ?? new PullRunner({ threads: config.pullThreads, timeLimitMs: config.pullTimeLimitMs });
+  const fits = deps.fits ?? new FitRunner({ threads: config.fitThreads, timeLimitMs: config.fitTimeLimitMs });
 
   const app = express();
   app.disable('x-powered-by');
@@ -40,7 +44,7 @@ export function createApp(deps: AppDeps): Express {
     }),
   );
 
-  app.use('/api', apiRoutes({ knex, queue, config, logger, pulls }));
+  app.use('/api', apiRoutes({ knex, queue, config, logger, pulls, fits }));
 
   const indexHtml = join(config.webDist, 'index.html');
   if (existsSync(indexHtml)) {

@@ -53,6 +53,9 @@ const envSchema = z
     PULL_TIME_LIMIT_MS: z.coerce.number().int().min(10).max(600_000).default(15_000),
     PULL_MAX_STEPS: z.coerce.number().int().min(100).max(10_000_000).default(200_000),
     PULL_MAX_SAMPLES: z.coerce.number().int().min(2).max(1_000_000).default(3001),
+    DATALOG_MAX_BYTES: z.coerce.number().int().min(1024).max(20 * 1024 * 1024).default(2 * 1024 * 1024),
+    FIT_THREADS: z.coerce.number().int().min(1).max(16).default(1),
+    FIT_TIME_LIMIT_MS: z.coerce.number().int().min(100).max(600_000).default(60_000),
     CHANGE_PASSWORD_LIMIT_PER_15_MINUTES: z.coerce.number().int().min(1).max(10_000).default(10),
     SMTP_URL: z
       .url({ protocol: /^smtps?$/, error: 'must be an smtp:// or smtps:// URL' })
@@ -108,6 +111,12 @@ export interface Config {
   readonly pullMaxSteps: number;
   /** Samples of a pull's series; a longer pull or a finer sampling is refused. */
   readonly pullMaxSamples: number;
+  /** Largest datalog CSV accepted (at most 20 MiB, the form parser's own ceiling). */
+  readonly datalogMaxBytes: number;
+  /** Threads that compute datalog fits (each a hundred or so pulls). */
+  readonly fitThreads: number;
+  /** A fit request is answered within this, waiting for a thread included. */
+  readonly fitTimeLimitMs: number;
   /** Where e-mail is handed over: the local mail catcher by default, a hosted provider in production. */
   readonly smtpUrl: string;
   readonly mailFrom: string;
@@ -160,6 +169,9 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     pullTimeLimitMs: e.PULL_TIME_LIMIT_MS,
     pullMaxSteps: e.PULL_MAX_STEPS,
     pullMaxSamples: e.PULL_MAX_SAMPLES,
+    datalogMaxBytes: e.DATALOG_MAX_BYTES,
+    fitThreads: e.FIT_THREADS,
+    fitTimeLimitMs: e.FIT_TIME_LIMIT_MS,
     smtpUrl: e.SMTP_URL,
     mailFrom: e.MAIL_FROM,
     publicUrl: e.PUBLIC_URL,

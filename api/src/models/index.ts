@@ -13,6 +13,7 @@ export { AuditEntry, type AuditAction, type AuditChange } from './audit-entry.ts
 export { Invitation } from './invitation.ts';
 export { ShareLink, SHARE_TARGETS, type ShareTarget } from './share-link.ts';
 export { Upload, UPLOAD_KINDS, type UploadKind } from './upload.ts';
+export { DatalogSeries } from './datalog-series.ts';
 export { UsageEntry, USAGE_KINDS, type UsageKind } from './usage-entry.ts';
 export { Quota } from './quota.ts';
 export { PasswordReset } from './password-reset.ts';

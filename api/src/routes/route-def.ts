@@ -4,6 +4,7 @@ import type { z } from 'zod';
 import type { Config } from '../config.ts';
 import { USER_ROLES, type UserRole } from '../models/index.ts';
 import type { AuthContext } from '../services/auth.ts';
+import type { FitRunnerLike } from '../services/datalogs/fit-runner.ts';
 import type { PullRunnerLike } from '../services/pull/pull-runner.ts';
 import type { SweepQueue } from '../services/sweeps.ts';
 
@@ -14,6 +15,7 @@ export interface ApiDeps {
   queue: SweepQueue;
   logger: Logger;
   pulls: PullRunnerLike;
+  fits: FitRunnerLike;
 }
 
 export type HttpMethod = 'get' | 'post' | 'patch' | 'put' | 'delete';

@@ -1,5 +1,6 @@
 import { authRoutes } from './auth.ts';
 import { balanceRoutes } from './balance.ts';
+import { datalogRoutes } from './datalogs.ts';
 import { healthRoutes } from './health.ts';
 import { libraryRoutes } from './library.ts';
 import { openApiRoutes } from './openapi.ts';
@@ -22,6 +23,7 @@ export const routeTable: readonly AnyRoute[] = [
   ...balanceRoutes,
   ...sweepRoutes,
   ...libraryRoutes,
+  ...datalogRoutes,
   ...usageRoutes,
   ...teamRoutes,
   ...sharingRoutes,

@@ -8,6 +8,7 @@ import { loadConfig } from '../../src/config.ts';
 import { errorMiddleware } from '../../src/errors/index.ts';
 import { buildRouter } from '../../src/routes/build-router.ts';
 import { defineRoute, StreamReply, type AnyRoute, type ApiDeps } from '../../src/routes/route-def.ts';
+import type { FitRunnerLike } from '../../src/services/datalogs/fit-runner.ts';
 import type { PullRunnerLike } from '../../src/services/pull/pull-runner.ts';
 import type { SweepQueue } from '../../src/services/sweeps.ts';
 
@@ -18,6 +19,7 @@ const deps: ApiDeps = {
   queue: {} as SweepQueue,
   logger: pino({ level: 'silent' }),
   pulls: {} as PullRunnerLike,
+  fits: {} as FitRunnerLike,
 };
 
 function appWith(routes: AnyRoute[]) {

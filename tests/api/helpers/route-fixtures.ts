@@ -4,6 +4,7 @@ import { TEST_PASSWORD, type Role, type TestWorkspace } from './context.ts';
 import { mailSharingFixtures } from './fixtures-mail-sharing.ts';
 import { quotasUsageFixtures } from './fixtures-quotas-usage.ts';
 import { LIBRARY_TABLES, PART_SAMPLES, type LibraryTable, type Side, type World } from './world.ts';
+import { datalogsFixtures } from './fixtures-datalogs.ts';
 
 /** One cell of the authorization matrix. */
 export interface Call {
@@ -22,6 +23,8 @@ export interface Prepared {
   body?: unknown;
   /** Sent instead of the caller's usual token (a route that spends or changes the token). */
   token?: string;
+  /** A file sent as multipart/form-data (a route whose requestBody is multipart); `body` then holds its text fields. */
+  file?: { field: string; filename: string; content: Buffer; contentType: string };
 }
 
 /**
@@ -113,6 +116,7 @@ export const routeFixtures: Record<string, RouteFixture> = {
   },
   ...quotasUsageFixtures,
   ...mailSharingFixtures,
+  ...datalogsFixtures,
 };
 
 /** Route ids of a library kind, as the API names them (listSprings, getSpring, …). */

@@ -17,5 +17,11 @@ export function send(app: Express, method: string, prepared: Prepared, token: st
   if (prepared.query) req = req.query(prepared.query);
   const bearer = prepared.token ?? token;
   if (bearer !== null) req = req.set('Authorization', `Bearer ${bearer}`);
+  if (prepared.file) {
+    const { field, filename, content, contentType } = prepared.file;
+    req = req.attach(field, content, { filename, contentType });
+    for (const [name, value] of Object.entries((prepared.body ?? {}) as Record<string, unknown>)) req = req.field(name, String(value));
+    return req;
+  }
   return prepared.body === undefined ? req : req.send(prepared.body as object);
 }
