@@ -262,6 +262,25 @@ describe('POST /api/datalogs/:id/fit', () => {
     expect(untouched.version).toBe(1);
     const audit = await ctx.knex('audit_log').where({ entity_id: scenario.id, action: 'create' }).first();
     expect(audit.changes.fittedFrom.to).toMatchObject({ scenarioId, datalogId: id });
+    // One compute unit for each pull the fit ran.
+    const charges = await ctx.knex('usage_ledger').where({ scenario_id: scenarioId, kind: 'pull' }).whereLike('note', 'datalog fit%');
+    expect(charges.map((c) => Number(c.compute_units))).toEqual([fit.evaluations]);
+  });
+
+  it('answers 402 when the workspace has fewer units left than a fit may need, writing nothing', async () => {
+    const id = await confirmedLog();
+    const scenarioId = await scenarioOf(exampleScenario());
+    await ctx.knex('quotas').insert({ workspace_id: shop.id, user_id: null, monthly_compute_units: 0 });
+    try {
+      const before = await dbFingerprint(ctx.knex);
+      const response = await request(ctx.app).post(`/api/datalogs/${id}/fit`).set(bearer('engineer')).send({ scenarioId });
+      expect(response.status).toBe(402);
+      expect(response.body.error.code).toBe('quota_exceeded');
+      expect(response.body.error.message).toMatch(/A datalog fit needs 150 compute units/);
+      expect(await dbFingerprint(ctx.knex)).toEqual(before);
+    } finally {
+      await ctx.knex('quotas').where({ workspace_id: shop.id }).delete();
+    }
   });
 
   it('fits a logger export in milliseconds and absolute kPa as well', async () => {

@@ -126,7 +126,7 @@ export const datalogRoutes = [
     params: idParamsSchema,
     body: datalogFitBodySchema,
     success: { status: 201, description: 'The fit report and the fitted copy of the scenario', schema: datalogFitResponseSchema },
-    errors: [409, 422, 503],
+    errors: [402, 409, 422, 503],
     handler: async ({ deps, auth, params, body }) => {
       const result = await fitDatalog(deps, auth, params.id, body);
       // A poor fit writes no scenario: nothing was created, so the answer is a plain 200.

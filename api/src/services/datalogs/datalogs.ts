@@ -9,6 +9,7 @@ import type { DatalogFitBody, DatalogMappingBody, DatalogRow, ListDatalogsQuery 
 import type { ScenarioRow } from '../../schemas/scenarios.ts';
 import { recordAudit, snapshotChanges } from '../audit.ts';
 import type { AuthContext } from '../auth.ts';
+import { assertUnitsAvailable, lockWorkspaceUnits, readMonthUnits, SERVER_PULL_UNITS, usageMonthOf } from '../compute-units.ts';
 import { runScenarioPull } from '../pulls.ts';
 import { storedScenarioData, validateScenarioData } from '../scenario-data.ts';
 import { findScenario, presentScenario } from '../scenarios.ts';
@@ -317,6 +318,40 @@ export async function overlayDatalog(
   };
 }
 
+/** The pulls a fit may run (sim-core's evaluation budget): reserved as compute units before it starts. */
+export const FIT_PULL_BUDGET = 150;
+
+/**
+ * Holds a fit's largest cost (one unit a pull, FIT_PULL_BUDGET pulls) against the member's and the workspace's
+ * units, under the workspace's units lock, or refuses with 402. The row is settled to the pulls the fit ran,
+ * or removed when it produced nothing.
+ */
+async function reserveFitUnits(
+  deps: Pick<ApiDeps, 'knex' | 'config'>,
+  auth: Pick<AuthContext, 'workspaceId' | 'userId'>,
+  scenarioId: string,
+): Promise<string> {
+  const month = usageMonthOf(new Date());
+  return deps.knex.transaction(async (trx) => {
+    await lockWorkspaceUnits(trx, auth.workspaceId);
+    const units = await readMonthUnits(trx, deps.config, auth.workspaceId, month);
+    assertUnitsAvailable(units, auth.userId, FIT_PULL_BUDGET * SERVER_PULL_UNITS, 'A datalog fit');
+    const [row] = await trx('usage_ledger')
+      .insert({
+        workspace_id: auth.workspaceId,
+        user_id: auth.userId,
+        kind: 'pull',
+        compute_units: FIT_PULL_BUDGET * SERVER_PULL_UNITS,
+        period_month: month,
+        scenario_id: scenarioId,
+        note: 'datalog fit (held until it ends)',
+      })
+      .returning<{ id: string }[]>('id');
+    if (!row) throw new Error('the fit charge was not written');
+    return row.id;
+  });
+}
+
 function fittedName(scenarioName: string, filename: string): string {
   const suffix = ` — fitted to ${filename}`;
   if (scenarioName.length + suffix.length <= NAME_MAX) return `${scenarioName}${suffix}`;
@@ -327,7 +362,8 @@ function fittedName(scenarioName: string, filename: string): string {
  * Fits the ratio and seat force that best explain the log (sim-core's fitPullToLog, in a worker thread with a
  * time limit) and writes them into a new scenario copied from the one fitted, named for the log; the scenario
  * fitted is not changed, and a poor fit (sim-core's poorFit) writes nothing. The copy keeps the library sources of its engine, turbo, wastegate and supply; its
- * springs are the fitted ones, so it forgets where they came from.
+ * springs are the fitted ones, so it forgets where they came from. It costs a unit for each pull it ran:
+ * FIT_PULL_BUDGET are held before it starts (402 when they are not there) and the rest given back after.
  */
 export async function fitDatalog(
   deps: Pick<ApiDeps, 'knex' | 'config'> & { fits: FitRunnerLike },
@@ -342,10 +378,12 @@ export async function fitDatalog(
   const maxSteps = Math.min(data.solver.maxSteps, config.pullMaxSteps);
   const bounded = maxSteps === data.solver.maxSteps ? data : { ...data, solver: { ...data.solver, maxSteps } };
 
+  const charge = await reserveFitUnits(deps, auth, original.id);
   let fit: PullFitReport;
   try {
-    fit = await deps.fits.run(bounded, { timeS: series.timeS, boostPa: series.boostPa });
+    fit = await deps.fits.run(bounded, { timeS: series.timeS, boostPa: series.boostPa }, { maxEvaluations: FIT_PULL_BUDGET });
   } catch (error) {
+    await knex('usage_ledger').where({ id: charge }).delete();
     if (error instanceof FitTimeoutError) {
       throw new AppError(503, 'fit_timed_out', `The fit took longer than ${(error.limitMs / 1000).toFixed(0)} s to compute here. Try a shorter pull or try again when fewer fits are running.`);
     }
@@ -356,6 +394,10 @@ export async function fitDatalog(
     throw error;
   }
 
+  // The pulls the fit ran are what it costs, whatever came of it.
+  await knex('usage_ledger')
+    .where({ id: charge })
+    .update({ compute_units: Math.max(1, fit.evaluations) * SERVER_PULL_UNITS, note: `datalog fit: ${fit.evaluations} pulls` });
   // A fit that does not explain the log would only put wrong numbers into a scenario: the report says so instead.
   if (fit.poorFit) return { fit: { ...fit, notes: [...fit.notes, 'No scenario was written: the fit does not explain the log.'] }, scenario: null };
 
