@@ -48,6 +48,9 @@ const RESTRICTION_START = 1e6
 /** An inner spring of 10 lbf seat and 10 lbf/in (44.48 N, 1751 N/m; common practice, no source). */
 const NESTED_SPRING_START = { from: 'seat', seatForceN: 44.48, rateNPerM: 1751 } as const
 
+/** The scenario's tables over engine speed. */
+export type RpmTablePath = 'control.targetByRpm' | 'engine.volumetricEfficiencyByRpm'
+
 export type LiveBalance = { ok: true; scenario: Scenario; balance: BalanceResult } | { ok: false; issues: FieldIssue[] }
 
 function clone<T>(value: T): T {
@@ -329,6 +332,22 @@ export const useScenarioStore = defineStore('scenario', () => {
     d.springs = d.springs.map((s, i) => (i === index ? next : s))
   }
 
+  /** A whole rpm table at once (rows added, removed or reordered); undefined removes it, so the single figure applies. */
+  function setRpmTable(path: RpmTablePath, rows: Record<string, number>[] | undefined): void {
+    const d = draft.value
+    if (!d) return
+    if (path === 'control.targetByRpm') {
+      if (d.control.kind !== 'closed-loop') return
+      if (rows) d.control.targetByRpm = rows as { rpm: number; boostPa: number }[]
+      else delete d.control.targetByRpm
+    } else if (rows) {
+      d.engine.volumetricEfficiencyByRpm = rows as { rpm: number; volumetricEfficiency: number }[]
+    } else {
+      delete d.engine.volumetricEfficiencyByRpm
+    }
+    fieldErrors.value = Object.fromEntries(Object.entries(fieldErrors.value).filter(([key]) => !key.startsWith(path)))
+  }
+
   return {
     items,
     total,
@@ -363,5 +382,6 @@ export const useScenarioStore = defineStore('scenario', () => {
     addSpring,
     removeSpring,
     setSpringSource,
+    setRpmTable,
   }
 })
