@@ -84,11 +84,13 @@ describe('thin path', () => {
     await expect.poll(() => start.isEnabled()).toBe(true)
     await start.click()
     const progress = page.getByTestId('sweep-progress')
-    await expect.poll(() => progress.textContent(), { timeout: 60_000 }).toMatch(/Done\s*25 of 25 points/)
+    await expect.poll(() => progress.textContent(), { timeout: 60_000 }).toMatch(/Done[\s\S]*25 of 25 points/)
+    await page.locator('[data-testid="heat-map-plot"] .main-svg').first().waitFor({ timeout: 60_000 })
+    await page.getByTestId('view-surface').click()
     await page.locator('[data-testid="surface-plot"] .main-svg').first().waitFor({ timeout: 60_000 })
     await page.locator('[data-testid="surface-plot"] canvas').first().waitFor({ timeout: 30_000 })
     // Every point of this range cracks under boost, so the surface must have no gaps.
-    expect(await page.getByText('Gaps in the surface').count()).toBe(0)
+    expect(await page.getByText('Gaps are points with no value').count()).toBe(0)
     // Plotly draws the surface on its next frames; give it a moment before the picture. From the top of the
     // page, so the fixed app bar and drawer sit where a user sees them in the full-page capture.
     await page.evaluate('window.scrollTo(0, 0)')

@@ -35,18 +35,19 @@ afterEach(() => {
 })
 
 describe('useSweepStore', () => {
-  it('follows a sweep by polling until it is done, then loads its crack-boost surface', async () => {
+  it('follows a sweep by polling when the server has no event stream, then loads its crack-boost surface', async () => {
     const progress = [sweepAt(2, 'running'), sweepAt(6, 'done')]
     const surface = { metric: 'crackBoostPa', x: axes[1], y: axes[0], z: [[1, 2, 3], [4, 5, 6]] }
     const api = routeFetch({
       'POST /api/sweeps': () => [201, { sweep: sweepAt(0, 'queued') }],
       'GET /api/sweeps/w1': () => [200, { sweep: progress.shift() ?? sweepAt(6, 'done') }],
       'GET /api/sweeps/w1/surface': () => [200, surface],
+      'GET /api/sweeps/w1/events': () => [404, { error: { code: 'not_found', message: 'Not found.' } }],
     })
     vi.stubGlobal('fetch', api.fetchStub)
     const store = useSweepStore()
 
-    await store.start('s1', [{ path: 'springs.0.seatForceN', range: { from: 100, to: 150, count: 2 } }])
+    await store.start('s1', 'static', [{ path: 'springs.0.seatForceN', range: { from: 100, to: 150, count: 2 } }])
     await vi.advanceTimersByTimeAsync(0)
     expect(store.sweep?.pointsDone).toBe(2)
     expect(store.progress).toBeCloseTo(100 / 3, 6)
@@ -82,10 +83,107 @@ describe('useSweepStore', () => {
     })
     vi.stubGlobal('fetch', api.fetchStub)
     const store = useSweepStore()
-    await store.start('s1', [{ path: 'springs.0.seatForceN', range: { from: -10, to: 150, count: 2 } }])
+    await store.start('s1', 'static', [{ path: 'springs.0.seatForceN', range: { from: -10, to: 150, count: 2 } }])
 
     expect(store.error).toBe('The sweep is not valid.')
     expect(store.fieldErrors['axes.0.range']).toBe('gives a seat force that must be at least 0')
     expect(store.sweep).toBeNull()
+  })
+
+  it('follows the event stream with rate and time left, and loads the chosen metric and cut once done', async () => {
+    const three = [...axes, { path: 'supply.regulatorSetpointPa', values: [200_000, 300_000] }]
+    const queued = { ...sweepAt(0, 'queued'), axes: three, pointCount: 12, level: 'both' as const }
+    let send: ((text: string) => void) | null = null
+    let close: (() => void) | null = null
+    const surfaceQueries: Record<string, string>[] = []
+    const api = routeFetch({
+      'POST /api/sweeps': () => [201, { sweep: queued }],
+      'GET /api/sweeps/w1/surface': (_body, url) => {
+        surfaceQueries.push(Object.fromEntries(url.searchParams))
+        return [200, { metric: url.searchParams.get('metric'), x: axes[1], y: axes[0], z: [[1, 2, 3], [4, 5, 6]] }]
+      },
+    })
+    vi.stubGlobal('fetch', async (input: string, init?: RequestInit) => {
+      if (!String(input).endsWith('/events')) return api.fetchStub(input, init)
+      const encoder = new TextEncoder()
+      const body = new ReadableStream<Uint8Array>({
+        start(controller) {
+          send = (text) => controller.enqueue(encoder.encode(text))
+          close = () => controller.close()
+        },
+      })
+      return new Response(body, { status: 200, headers: { 'Content-Type': 'text/event-stream' } })
+    })
+    const store = useSweepStore()
+    await store.start('s1', 'both', [{ path: 'exhaust.ratio', values: [1, 1.5, 2] }])
+    await vi.advanceTimersByTimeAsync(0)
+    expect(store.followedBy).toBe('events')
+    expect(store.metric).toBe('crackBoostPa')
+
+    send!('event: progress\ndata: {"state":"running","pointCount":12,"pointsDone":3,"pointsFailed":1,"pointsPerSecond":1.5,"secondsLeft":6}\n\n')
+    await vi.advanceTimersByTimeAsync(0)
+    expect(store.sweep?.state).toBe('running')
+    expect(store.sweep?.pointsDone).toBe(3)
+    expect(store.sweep?.pointsFailed).toBe(1)
+    expect(store.progress).toBe(25)
+    expect(store.pointsPerSecond).toBe(1.5)
+    expect(store.secondsLeft).toBe(6)
+
+    send!('event: progress\ndata: {"state":"running","pointCount":12,"pointsDone":12,"pointsFailed":1,"pointsPerSecond":2,"secondsLeft":0}\n\nevent: state\ndata: {"state":"done"}\n\n')
+    close!()
+    await vi.advanceTimersByTimeAsync(0)
+    expect(store.sweep?.state).toBe('done')
+    expect(store.running).toBe(false)
+    expect(store.surface?.z).toEqual([[1, 2, 3], [4, 5, 6]])
+    expect(surfaceQueries[0]).toEqual({ metric: 'crackBoostPa', x: '1', y: '0', slice: '0' })
+
+    await store.view({ metric: 'settledBoostPa', slice: 1 })
+    expect(surfaceQueries[1]).toEqual({ metric: 'settledBoostPa', x: '1', y: '0', slice: '1' })
+    expect(store.surface?.metric).toBe('settledBoostPa')
+    // The sweep's own progress was never polled: the stream carried it.
+    expect(api.requests.some((r) => r.key === 'GET /api/sweeps/w1')).toBe(false)
+  })
+
+  it('says plainly when the month has not enough compute units left', async () => {
+    const api = routeFetch({
+      'POST /api/sweeps': () => [
+        402,
+        { error: { code: 'quota_exceeded', message: 'This sweep needs 250 compute units; 40 are left this month.' } },
+      ],
+    })
+    vi.stubGlobal('fetch', api.fetchStub)
+    const store = useSweepStore()
+    await store.start('s1', 'dynamic', [{ path: 'exhaust.ratio', range: { from: 1, to: 2, count: 250 } }])
+    expect(store.errorCode).toBe('quota_exceeded')
+    expect(store.error).toBe('This sweep needs 250 compute units; 40 are left this month.')
+    expect(store.sweep).toBeNull()
+  })
+
+  it('asks what a sweep would cost, keeps only the newest answer, and keeps the fields an estimate refuses', async () => {
+    const bodies: unknown[] = []
+    const api = routeFetch({
+      'POST /api/sweeps/estimate': (body) => {
+        bodies.push(body)
+        const axes = (body as { axes: { range?: { from: number } }[] }).axes
+        if ((axes[0]?.range?.from ?? 0) < 0) {
+          return [400, { error: { code: 'validation', message: 'The sweep axes are not valid.', fields: { 'axes.0.range': 'is below 0' } } }]
+        }
+        return [200, { estimate: { pointCount: 10, computeUnits: 10, remaining: { member: null, workspace: 500 } } }]
+      },
+    })
+    vi.stubGlobal('fetch', api.fetchStub)
+    const store = useSweepStore()
+    await store.estimateCost('s1', 'dynamic', [{ path: 'exhaust.ratio', range: { from: 1, to: 2, count: 10 } }])
+    expect(bodies[0]).toEqual({ scenarioId: 's1', level: 'dynamic', axes: [{ path: 'exhaust.ratio', range: { from: 1, to: 2, count: 10 } }] })
+    expect(store.estimate).toEqual({ pointCount: 10, computeUnits: 10, remaining: { member: null, workspace: 500 } })
+
+    await store.estimateCost('s1', 'static', [{ path: 'exhaust.ratio', range: { from: -1, to: 2, count: 10 } }])
+    expect(store.estimate).toBeNull()
+    expect(store.estimateError).toBe('The sweep axes are not valid.')
+    expect(store.estimateFields).toEqual({ 'axes.0.range': 'is below 0' })
+
+    store.clearEstimate()
+    expect(store.estimateFields).toEqual({})
+    expect(store.estimateError).toBeNull()
   })
 })

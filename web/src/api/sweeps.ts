@@ -1,17 +1,40 @@
+import { readEventStream } from './event-stream'
 import { request } from './http'
-import type { ListResult, Surface, SurfaceMetric, Sweep, SweepAxisRequest } from './types'
+import type { ServerSentEvent } from './sse-parser'
+import type { ListResult, Surface, SurfaceMetric, Sweep, SweepAxisRequest, SweepEstimate, SweepLevel } from './types'
+
+const sweepPath = (id: string) => `/api/sweeps/${encodeURIComponent(id)}`
+
+export interface SurfaceQuery {
+  metric: SurfaceMetric
+  x: number
+  y: number
+  /** For a three-axis sweep: the index of the remaining axis's value the surface is cut at. */
+  slice?: number
+}
 
 export const sweepsApi = {
-  create(scenarioId: string, axes: SweepAxisRequest[]): Promise<{ sweep: Sweep }> {
-    return request('/api/sweeps', { method: 'POST', body: { scenarioId, level: 'static', axes } })
+  create(scenarioId: string, level: SweepLevel, axes: SweepAxisRequest[]): Promise<{ sweep: Sweep }> {
+    return request('/api/sweeps', { method: 'POST', body: { scenarioId, level, axes } })
+  },
+  /** What the sweep would cost and what is left this month; nothing is created or reserved. */
+  estimate(scenarioId: string, level: SweepLevel, axes: SweepAxisRequest[], signal?: AbortSignal): Promise<{ estimate: SweepEstimate }> {
+    return request('/api/sweeps/estimate', { method: 'POST', body: { scenarioId, level, axes }, signal })
   },
   get(id: string, signal?: AbortSignal): Promise<{ sweep: Sweep }> {
-    return request(`/api/sweeps/${encodeURIComponent(id)}`, { signal })
+    return request(sweepPath(id), { signal })
+  },
+  /** The sweep's progress as server-sent events until it reaches a final state. */
+  events(id: string, onEvent: (event: ServerSentEvent) => void, signal?: AbortSignal): Promise<void> {
+    return readEventStream(`${sweepPath(id)}/events`, onEvent, signal)
+  },
+  cancel(id: string): Promise<{ sweep: Sweep }> {
+    return request(`${sweepPath(id)}/cancel`, { method: 'POST' })
   },
   listForScenario(scenarioId: string): Promise<ListResult<Sweep>> {
     return request('/api/sweeps', { query: { scenarioId } })
   },
-  surface(id: string, metric: SurfaceMetric, x: number, y: number): Promise<Surface> {
-    return request(`/api/sweeps/${encodeURIComponent(id)}/surface`, { query: { metric, x, y } })
+  surface(id: string, query: SurfaceQuery, signal?: AbortSignal): Promise<Surface> {
+    return request(`${sweepPath(id)}/surface`, { query: { ...query }, signal })
   },
 }

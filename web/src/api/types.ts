@@ -54,7 +54,32 @@ export interface Sweep {
   finishedAt: string | null
 }
 
-export type SurfaceMetric = 'crackBoostPa' | 'fullOpenBoostPa'
+export type SweepLevel = Sweep['level']
+
+/** The static level's metrics. */
+export type StaticMetric = 'crackBoostPa' | 'fullOpenBoostPa'
+
+/** A dynamic pull's metrics (MODEL.md §5); the flags read 1 (set) or 0 on a surface. */
+export type DynamicMetric =
+  | 'dynamicCrackBoostPa'
+  | 'peakBoostPa'
+  | 'settledBoostPa'
+  | 'staticBoostAtSettledLiftPa'
+  | 'overshootPa'
+  | 'timeTo90PercentS'
+  | 'creepPa'
+  | 'peakDrivePa'
+  | 'driveRatioSeen'
+  | 'maxLiftFraction'
+  | 'gasUsedPerPullKg'
+  | 'pullsPerSupply'
+  | 'overBoostLimit'
+  | 'heldOpenByDrive'
+  | 'supplyBelowSetpoint'
+  | 'pastZeroFlowLine'
+  | 'notSettled'
+
+export type SurfaceMetric = StaticMetric | DynamicMetric
 
 export interface Surface {
   metric: SurfaceMetric
@@ -62,4 +87,12 @@ export interface Surface {
   y: ResolvedAxis
   /** z[iy][ix]; null where the point has no value (never opens, failed, not done). */
   z: (number | null)[][]
+}
+
+/** What a sweep would cost before it is started (`POST /api/sweeps/estimate`). */
+export interface SweepEstimate {
+  pointCount: number
+  computeUnits: number
+  /** Units left this month: of the member's own limit (null when they have none) and of the workspace's. */
+  remaining: { member: number | null; workspace: number }
 }
