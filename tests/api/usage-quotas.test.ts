@@ -58,7 +58,7 @@ function sweepBody(shop: Shop, level: 'static' | 'dynamic' | 'both', forces: num
   };
 }
 
-async function createSweep(shop: Shop, body: unknown, role: Role = 'engineer') {
+async function createSweep(shop: Shop, body: object, role: Role = 'engineer') {
   return request(ctx.app).post('/api/sweeps').set(as(shop.tokens[role])).send(body);
 }
 
