@@ -1,6 +1,7 @@
 import { afterEach, describe, expect, it, vi } from 'vitest'
 import { defineComponent, h } from 'vue'
 import { enableAutoUnmount, flushPromises, type VueWrapper } from '@vue/test-utils'
+import { VSelect } from 'vuetify/components'
 import type { Quotas, Usage } from '@/api/usage'
 import { useSessionStore } from '@/stores/session'
 import UsageView from '@/views/UsageView.vue'
@@ -152,6 +153,28 @@ describe('UsageView', () => {
     expect(wrapper.find('[data-testid="workspace-usage"]').exists()).toBe(false)
     expect(wrapper.find('[data-testid="quota-editor"]').exists()).toBe(false)
     expect(requests.map((r) => r.key)).toEqual(['GET /api/usage'])
+  })
+
+  it('reads another month when one is picked', async () => {
+    const { fetchStub, requests } = routeFetch({
+      'GET /api/usage': (_body, url) => {
+        const month = url.searchParams.get('month') ?? '2026-12'
+        const past = month === '2026-11'
+        return [200, { usage: { ...usage(null), month, workspace: { ...usage(null).workspace, spent: past ? 640 : 30 } } }]
+      },
+      'GET /api/quotas': () => [200, { quotas: quotas(null) }],
+    })
+    vi.stubGlobal('fetch', fetchStub)
+    const { wrapper } = await mountApp(pageAs('admin'))
+    await flushPromises()
+    expect(wrapper.find('[data-testid="workspace-usage"]').text()).toContain('December 2026')
+
+    wrapper.findComponent(VSelect).vm.$emit('update:modelValue', '2026-11')
+    await flushPromises()
+    expect(requests.filter((r) => r.key === 'GET /api/usage').map((r) => r.url.searchParams.get('month'))).toEqual([null, '2026-11'])
+    const card = wrapper.find('[data-testid="workspace-usage"]').text()
+    expect(card).toContain('November 2026')
+    expect(card).toContain('640')
   })
 
   it('says so when usage cannot be loaded', async () => {
