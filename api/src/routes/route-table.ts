@@ -7,6 +7,7 @@ import { openApiRoutes } from './openapi.ts';
 import type { AnyRoute } from './route-def.ts';
 import { scenarioRoutes } from './scenarios.ts';
 import { sharingRoutes } from './sharing.ts';
+import { sweepResultRoutes } from './sweep-results.ts';
 import { sweepRoutes } from './sweeps.ts';
 import { teamRoutes } from './team.ts';
 import { usageRoutes } from './usage.ts';
@@ -22,6 +23,7 @@ export const routeTable: readonly AnyRoute[] = [
   ...scenarioRoutes,
   ...balanceRoutes,
   ...sweepRoutes,
+  ...sweepResultRoutes,
   ...libraryRoutes,
   ...datalogRoutes,
   ...usageRoutes,

@@ -9,7 +9,8 @@ import {
 } from '../schemas/sweeps.ts';
 import { emptyBodySchema } from '../schemas/pulls.ts';
 import { sweepEstimateResponseSchema } from '../schemas/usage.ts';
-import { cancelSweep, createSweep, estimateSweep, getSurface, getSweep, listSweeps } from '../services/sweeps.ts';
+import { cancelSweep, createSweep, estimateSweep, getSweep, listSweeps } from '../services/sweeps.ts';
+import { getSweepSurface } from '../services/sweep-surface.ts';
 import { defineRoute, ROLES } from './route-def.ts';
 
 export const sweepRoutes = [
@@ -67,7 +68,7 @@ export const sweepRoutes = [
     id: 'getSweepSurface',
     method: 'get',
     path: '/sweeps/:id/surface',
-    summary: 'A result of the sweep over two of its axes, z[iy][ix]',
+    summary: 'A result of the sweep over two of its axes, z[iy][ix]; a three-axis sweep is cut at a value of the third (at) or its index (slice)',
     tag: 'Sweeps',
     access: ROLES.everyone,
     scope: 'object',
@@ -75,7 +76,7 @@ export const sweepRoutes = [
     params: idParamsSchema,
     query: surfaceQuerySchema,
     success: { status: 200, description: 'The surface; null where a point has no value', schema: surfaceSchema },
-    handler: ({ deps, auth, params, query }) => getSurface(deps.knex, auth.workspaceId, params.id, query),
+    handler: ({ deps, auth, params, query }) => getSweepSurface(deps.knex, auth.workspaceId, params.id, query),
   }),
   defineRoute({
     id: 'cancelSweep',

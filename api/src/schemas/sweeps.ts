@@ -57,6 +57,8 @@ export const surfaceQuerySchema = z.object({
   y: z.coerce.number().int('must be an axis number').min(0).max(2).default(1),
   /** For a three-axis sweep: which value (by index) of the remaining axis the surface is cut at. */
   slice: z.coerce.number().int('must be a whole number').min(0).default(0),
+  /** For a three-axis sweep: the value (SI) of the remaining axis to cut at; the nearest listed one is used. */
+  at: z.coerce.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a finite number').optional(),
 });
 export type SurfaceQuery = z.output<typeof surfaceQuerySchema>;
 
@@ -84,6 +86,10 @@ export const surfaceSchema = z.object({
   y: axisSchema,
   /** z[iy][ix], Plotly's layout; null where the point has no value (never opens, failed, not done). */
   z: z.array(z.array(z.number().nullable())),
+  /** Where a three-axis sweep was cut: the remaining axis and the listed value used; null for two axes. */
+  slice: z
+    .object({ axis: z.number().int(), path: z.string(), index: z.number().int(), value: z.number(), requested: z.number().nullable() })
+    .nullable(),
 });
 export type Surface = z.infer<typeof surfaceSchema>;
 

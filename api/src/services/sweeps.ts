@@ -6,17 +6,7 @@ import type { Logger } from 'pino';
 import type { Config } from '../config.ts';
 import { AppError, type FieldErrors } from '../errors/index.ts';
 import { Sweep, type ResolvedAxis } from '../models/index.ts';
-import {
-  DYNAMIC_METRIC_COLUMNS,
-  FLAG_METRICS,
-  METRIC_COLUMNS,
-  STATIC_METRIC_COLUMNS,
-  type CreateSweepBody,
-  type ListSweepsQuery,
-  type Surface,
-  type SurfaceQuery,
-  type SweepView,
-} from '../schemas/sweeps.ts';
+import type { CreateSweepBody, ListSweepsQuery, SweepView } from '../schemas/sweeps.ts';
 import type { SweepEstimate } from '../schemas/usage.ts';
 import type { AuthContext } from './auth.ts';
 import { assertUnitsAvailable, estimateSweepUnits, lockWorkspaceUnits, readMonthUnits, usableBy, usageMonthOf } from './compute-units.ts';
@@ -197,70 +187,5 @@ export async function listSweeps(
   return { items: rows.map(presentSweep), total };
 }
 
-/**
- * Point indices run with the first axis slowest (sim-core's order), so axis a's value index of a
- * point is floor(index / stride_a) mod n_a with stride_a the product of the later axes' lengths.
- */
-function strideOf(axes: readonly ResolvedAxis[], axis: number): number {
-  return axes.slice(axis + 1).reduce((n, a) => n * a.values.length, 1);
-}
-
-/** A metric the sweep's level never computes is a mistake to point out, not a grid of nulls. */
-function metricFieldsFor(level: Sweep['level'], metric: SurfaceQuery['metric']): FieldErrors | undefined {
-  if (level === 'static' && metric in DYNAMIC_METRIC_COLUMNS) {
-    return { metric: `is a result of the dynamic level; this sweep ran the static level only (${Object.keys(STATIC_METRIC_COLUMNS).join(', ')})` };
-  }
-  if (level === 'dynamic' && metric in STATIC_METRIC_COLUMNS) {
-    return { metric: `is a result of the static level; this sweep ran the dynamic level only (dynamicCrackBoostPa, settledBoostPa, …)` };
-  }
-  return undefined;
-}
-
-export async function getSurface(knex: Knex, workspaceId: string, id: string, query: SurfaceQuery): Promise<Surface> {
-  const sweep = await findSweep(knex, workspaceId, id);
-  const axes = sweep.axes;
-  const fields: FieldErrors = {};
-  if (query.x >= axes.length) fields.x = `must name one of the sweep's ${axes.length} axes (0…${axes.length - 1})`;
-  if (query.y >= axes.length) fields.y = `must name one of the sweep's ${axes.length} axes (0…${axes.length - 1})`;
-  if (query.x === query.y) fields.y = 'must be a different axis from x';
-  const other = [0, 1, 2].find((a) => a < axes.length && a !== query.x && a !== query.y);
-  const otherAxis = other === undefined ? undefined : axes[other];
-  if (otherAxis && query.slice >= otherAxis.values.length) {
-    fields.slice = `must be below ${otherAxis.values.length}, the number of values of axis ${other}`;
-  }
-  const xAxis = axes[query.x];
-  const yAxis = axes[query.y];
-  if (Object.keys(fields).length > 0 || !xAxis || !yAxis) throw AppError.validation(fields, 'The surface query is not valid.');
-
-  const levelFields = metricFieldsFor(sweep.level, query.metric);
-  if (levelFields) throw AppError.validation(levelFields, 'The surface query is not valid.');
-
-  const column = METRIC_COLUMNS[query.metric];
-  // Flags are booleans in the table; a surface plots them as 1 (set) and 0.
-  const points = knex('sweep_points')
-    .where('sweep_id', sweep.id)
-    .whereNotNull(column)
-    .select<{ point_index: number; value: number }[]>(
-      'point_index',
-      knex.raw(FLAG_METRICS.has(query.metric) ? '??::int as value' : '?? as value', [column]),
-    );
-  if (other !== undefined && otherAxis) {
-    points.whereRaw('(point_index / ?) % ? = ?', [strideOf(axes, other), otherAxis.values.length, query.slice]);
-  }
-
-  const z: (number | null)[][] = yAxis.values.map(() => xAxis.values.map(() => null));
-  const xStride = strideOf(axes, query.x);
-  const yStride = strideOf(axes, query.y);
-  for (const point of await points) {
-    const ix = Math.floor(point.point_index / xStride) % xAxis.values.length;
-    const iy = Math.floor(point.point_index / yStride) % yAxis.values.length;
-    const row = z[iy];
-    if (row) row[ix] = point.value;
-  }
-  return {
-    metric: query.metric,
-    x: { path: xAxis.path, values: xAxis.values },
-    y: { path: yAxis.path, values: yAxis.values },
-    z,
-  };
-}
+/** A metric over two axes (and a value of the third) lives with the other sweep results. */
+export { getSweepSurface as getSurface } from './sweep-surface.ts';

@@ -3,6 +3,7 @@ import { defaultScenario } from '@crackpoint/sim-core';
 import { TEST_PASSWORD, type Role, type TestWorkspace } from './context.ts';
 import { mailSharingFixtures } from './fixtures-mail-sharing.ts';
 import { quotasUsageFixtures } from './fixtures-quotas-usage.ts';
+import { sweepResultsFixtures } from './fixtures-sweep-results.ts';
 import { LIBRARY_TABLES, PART_SAMPLES, type LibraryTable, type Side, type World } from './world.ts';
 import { datalogsFixtures } from './fixtures-datalogs.ts';
 
@@ -117,6 +118,7 @@ export const routeFixtures: Record<string, RouteFixture> = {
   ...quotasUsageFixtures,
   ...mailSharingFixtures,
   ...datalogsFixtures,
+  ...sweepResultsFixtures,
 };
 
 /** Route ids of a library kind, as the API names them (listSprings, getSpring, …). */
