@@ -48,6 +48,12 @@ const routes: RouteRecordRaw[] = [
         props: true,
         meta: { title: 'Scenario' },
       },
+      {
+        path: 'compare',
+        name: 'compare',
+        component: () => import('@/views/CompareView.vue'),
+        meta: { title: 'Compare' },
+      },
       { path: 'library', redirect: { name: 'library', params: { kind: 'wastegates' } } },
       {
         path: 'library/:kind',
