@@ -7,6 +7,7 @@ import { parseConfig } from './lib/config.ts'
 import { demoAccounts } from './lib/demo-accounts.ts'
 import { isPortOpen } from './lib/is-port-open.ts'
 import { startMailCatcher } from './lib/mail-catcher.ts'
+import { LOCAL_PAYMENT_KEYS, paymentFakeEnv, startPaymentFake } from './lib/payment-fake.ts'
 import { runMain } from './lib/run-main.ts'
 import { ScriptError } from './lib/script-error.ts'
 import { seedDemo } from './lib/seed-demo.ts'
@@ -63,6 +64,26 @@ runMain(async () => {
     say(`Mail catcher on smtp://${mail.host}:${mail.port}: e-mail the app sends is saved in ${mail.dir}, never delivered`)
     checkStop()
 
+    // Payments go to the local stand-in for Stripe unless STRIPE_API_BASE points the API elsewhere (Stripe's test mode).
+    let paymentEnv: Record<string, string> = {}
+    if (process.env.STRIPE_API_BASE) {
+      say(`Payments go to ${process.env.STRIPE_API_BASE} (STRIPE_API_BASE); no local payment stand-in`)
+    } else {
+      if (await isPortOpen(config.payments.host, config.payments.port)) {
+        throw new ScriptError(`Port ${config.payments.port} for the payment stand-in is taken; stop that program or set ${config.payments.portSetting}.`)
+      }
+      const payments = await startPaymentFake({
+        host: config.payments.host,
+        port: config.payments.port,
+        ...LOCAL_PAYMENT_KEYS,
+        webhookUrls: [`http://${apiHost}:${config.api.port}/api/billing/webhook`],
+      })
+      cleanup.push('stop the payment stand-in', () => payments.close())
+      paymentEnv = paymentFakeEnv(payments)
+      say(`Payment stand-in (in place of Stripe) on ${payments.baseUrl}: checkouts are paid on its own page and no money moves`)
+    }
+    checkStop()
+
     const { applied } = await runMigrations({ databaseUrl: config.databaseUrl })
     say(applied.length === 0 ? 'Database is up to date' : `Applied ${applied.length} migration(s)`)
     checkStop()
@@ -86,6 +107,7 @@ runMain(async () => {
       HOST: config.api.host,
       PORT: String(config.api.port),
       WEB_DIST: config.webDist,
+      ...paymentEnv,
       SMTP_URL: `smtp://${mail.host}:${mail.port}`,
     }
     cleanup.push('stop the API and the worker', () => children.stopAll())

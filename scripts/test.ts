@@ -7,6 +7,7 @@ import { fallbackClusterRoot } from './lib/cluster-location.ts'
 import { parseConfig } from './lib/config.ts'
 import { findTestFiles } from './lib/find-test-files.ts'
 import { startMailCatcher } from './lib/mail-catcher.ts'
+import { LOCAL_PAYMENT_KEYS, paymentFakeEnv, startPaymentFake } from './lib/payment-fake.ts'
 import { repoRoot } from './lib/repo-root.ts'
 import { runCommand } from './lib/run-command.ts'
 import { runMain } from './lib/run-main.ts'
@@ -123,6 +124,12 @@ runMain(async () => {
     })
     cleanup.push('stop the mail catcher', () => mail.close())
 
+    // The local stand-in for Stripe; each test that pays registers its own API's webhook URL with it.
+    const payments = await startPaymentFake({ host: config.payments.host, port: config.payments.port, ...LOCAL_PAYMENT_KEYS }).catch((error: unknown) => {
+      throw new ScriptError(`The payment stand-in could not listen on port ${config.payments.port} (${error instanceof Error ? error.message : String(error)}); set ${config.payments.portSetting} to a free port.`)
+    })
+    cleanup.push('stop the payment stand-in', () => payments.close())
+
     const { applied } = await runMigrations({ databaseUrl: config.databaseUrl })
     say(`Applied ${applied.length} migration(s)`)
 
@@ -146,6 +153,7 @@ runMain(async () => {
       NODE_ENV: 'test',
       CHROMIUM_PATH: config.chromiumPath,
       WEB_DIST: config.webDist,
+      ...paymentFakeEnv(payments),
       TMPDIR: suiteTmp,
       SMTP_URL: `smtp://${mail.host}:${mail.port}`,
       CRACKPOINT_MAIL_DIR: mail.dir,

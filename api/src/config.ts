@@ -16,6 +16,13 @@ function parseTtlSeconds(text: string): number | undefined {
   return seconds > 0 ? seconds : undefined;
 }
 
+/**
+ * Keys of the local payment stand-in (scripts/lib/payment-fake.ts), which accepts nothing else. A deployment
+ * sets STRIPE_SECRET_KEY and STRIPE_WEBHOOK_SECRET from its Stripe dashboard; production refuses these.
+ */
+export const LOCAL_STRIPE_SECRET_KEY = 'sk_test_crackpoint_local_stand_in';
+export const LOCAL_STRIPE_WEBHOOK_SECRET = 'whsec_crackpoint_local_stand_in';
+
 const logLevels = ['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'] as const;
 
 const envSchema = z
@@ -57,6 +64,12 @@ const envSchema = z
     FIT_THREADS: z.coerce.number().int().min(1).max(16).default(1),
     FIT_TIME_LIMIT_MS: z.coerce.number().int().min(100).max(600_000).default(60_000),
     CHANGE_PASSWORD_LIMIT_PER_15_MINUTES: z.coerce.number().int().min(1).max(10_000).default(10),
+    // The payment provider's API: the local stand-in by default, https://api.stripe.com in a deployment.
+    STRIPE_API_BASE: z
+      .url({ protocol: /^https?$/, error: 'must be an http:// or https:// URL such as https://api.stripe.com' })
+      .default('http://127.0.0.1:55045'),
+    STRIPE_SECRET_KEY: z.string().regex(/^(sk|rk)_/, 'must be a Stripe secret key (sk_… or rk_…)').default(LOCAL_STRIPE_SECRET_KEY),
+    STRIPE_WEBHOOK_SECRET: z.string().regex(/^whsec_/, "must be a webhook endpoint's signing secret (whsec_…)").default(LOCAL_STRIPE_WEBHOOK_SECRET),
     SMTP_URL: z
       .url({ protocol: /^smtps?$/, error: 'must be an smtp:// or smtps:// URL' })
       .default('smtp://127.0.0.1:55025'),
@@ -72,6 +85,12 @@ const envSchema = z
   .superRefine((env, ctx) => {
     if (env.NODE_ENV === 'production' && env.JWT_SECRET === DEV_JWT_SECRET) {
       ctx.addIssue({ code: 'custom', path: ['JWT_SECRET'], message: 'must be set to a secret of your own in production' });
+    }
+    if (env.NODE_ENV === 'production' && env.STRIPE_SECRET_KEY === LOCAL_STRIPE_SECRET_KEY) {
+      ctx.addIssue({ code: 'custom', path: ['STRIPE_SECRET_KEY'], message: "must be your Stripe account's secret key in production" });
+    }
+    if (env.NODE_ENV === 'production' && env.STRIPE_WEBHOOK_SECRET === LOCAL_STRIPE_WEBHOOK_SECRET) {
+      ctx.addIssue({ code: 'custom', path: ['STRIPE_WEBHOOK_SECRET'], message: "must be your webhook endpoint's signing secret in production" });
     }
   });
 
@@ -111,6 +130,8 @@ export interface Config {
   readonly pullMaxSteps: number;
   /** Samples of a pull's series; a longer pull or a finer sampling is refused. */
   readonly pullMaxSamples: number;
+  /** Where the Stripe SDK sends its requests, and with which keys (billing). */
+  readonly stripe: StripeSettings;
   /** Largest datalog CSV accepted (at most 20 MiB, the form parser's own ceiling). */
   readonly datalogMaxBytes: number;
   /** Threads that compute datalog fits (each a hundred or so pulls). */
@@ -128,6 +149,23 @@ export interface Config {
   readonly sharedViewLimitPerMinute: number;
   /** How often the API looks for finished sweeps whose creators want an e-mail. */
   readonly notifyIntervalMs: number;
+}
+
+export interface StripeSettings {
+  /** The SDK's `protocol`, `host` and `port`: the local stand-in's address, or Stripe's own. */
+  readonly protocol: 'http' | 'https';
+  readonly host: string;
+  readonly port: number;
+  readonly secretKey: string;
+  /** Verifies the `Stripe-Signature` header of every webhook delivery. */
+  readonly webhookSecret: string;
+}
+
+function stripeSettings(apiBase: string, secretKey: string, webhookSecret: string): StripeSettings {
+  const url = new URL(apiBase);
+  const protocol = url.protocol === 'http:' ? 'http' : 'https';
+  const port = url.port === '' ? (protocol === 'http' ? 80 : 443) : Number(url.port);
+  return Object.freeze({ protocol, host: url.hostname.replace(/^\[|\]$/g, ''), port, secretKey, webhookSecret });
 }
 
 export class ConfigError extends Error {
@@ -169,6 +207,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     pullTimeLimitMs: e.PULL_TIME_LIMIT_MS,
     pullMaxSteps: e.PULL_MAX_STEPS,
     pullMaxSamples: e.PULL_MAX_SAMPLES,
+    stripe: stripeSettings(e.STRIPE_API_BASE, e.STRIPE_SECRET_KEY, e.STRIPE_WEBHOOK_SECRET),
     datalogMaxBytes: e.DATALOG_MAX_BYTES,
     fitThreads: e.FIT_THREADS,
     fitTimeLimitMs: e.FIT_TIME_LIMIT_MS,

@@ -69,10 +69,16 @@ describe('GET /api/openapi.json', () => {
       for (const name of [...route.path.matchAll(/:(\w+)/g)].map((m) => m[1])) {
         expect(operation.parameters?.find((p) => p.in === 'path' && p.name === name)?.required).toBe(true);
       }
-      expect(operation.requestBody !== undefined).toBe(route.body !== undefined);
-      if (route.body) {
+      // A form upload or a raw body is described whether or not text fields are parsed beside it.
+      const kind = route.requestBody?.kind ?? 'json';
+      expect(operation.requestBody !== undefined).toBe(route.body !== undefined || kind !== 'json');
+      if (kind === 'json' && route.body) {
         expect(operation.requestBody?.required).toBe(!route.bodyOptional);
         expect(operation.requestBody?.content['application/json']?.schema).toBeDefined();
+      }
+      if (kind !== 'json') {
+        expect(operation.requestBody?.required).toBe(true);
+        expect(operation.requestBody?.content[kind === 'raw' ? 'application/octet-stream' : 'multipart/form-data']?.schema).toBeDefined();
       }
       expect(operation.responses[String(route.success.status)]).toBeDefined();
       if (route.access !== 'public') expect(operation.responses['401']?.content?.['application/json']?.schema).toEqual({ $ref: '#/components/schemas/Error' });

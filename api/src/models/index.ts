@@ -16,4 +16,5 @@ export { Upload, UPLOAD_KINDS, type UploadKind } from './upload.ts';
 export { DatalogSeries } from './datalog-series.ts';
 export { UsageEntry, USAGE_KINDS, type UsageKind } from './usage-entry.ts';
 export { Quota } from './quota.ts';
+export { Purchase, PURCHASE_STATES, type PurchaseState } from './purchase.ts';
 export { PasswordReset } from './password-reset.ts';

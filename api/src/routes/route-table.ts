@@ -1,5 +1,6 @@
 import { authRoutes } from './auth.ts';
 import { balanceRoutes } from './balance.ts';
+import { billingRoutes } from './billing.ts';
 import { datalogRoutes } from './datalogs.ts';
 import { healthRoutes } from './health.ts';
 import { libraryRoutes } from './library.ts';
@@ -25,6 +26,7 @@ export const routeTable: readonly AnyRoute[] = [
   ...sweepRoutes,
   ...sweepResultRoutes,
   ...libraryRoutes,
+  ...billingRoutes,
   ...datalogRoutes,
   ...usageRoutes,
   ...teamRoutes,

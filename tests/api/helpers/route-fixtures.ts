@@ -1,6 +1,7 @@
 import { ROLES as ROLE_SETS } from '@crackpoint/api';
 import { defaultScenario } from '@crackpoint/sim-core';
 import { TEST_PASSWORD, type Role, type TestWorkspace } from './context.ts';
+import { billingFixtures } from './fixtures-billing.ts';
 import { mailSharingFixtures } from './fixtures-mail-sharing.ts';
 import { quotasUsageFixtures } from './fixtures-quotas-usage.ts';
 import { sweepResultsFixtures } from './fixtures-sweep-results.ts';
@@ -24,6 +25,8 @@ export interface Prepared {
   body?: unknown;
   /** Sent instead of the caller's usual token (a route that spends or changes the token). */
   token?: string;
+  /** Further request headers (a webhook's signature). */
+  headers?: Record<string, string>;
   /** A file sent as multipart/form-data (a route whose requestBody is multipart); `body` then holds its text fields. */
   file?: { field: string; filename: string; content: Buffer; contentType: string };
 }
@@ -115,6 +118,7 @@ export const routeFixtures: Record<string, RouteFixture> = {
       query: { x: 0, y: 1 },
     }),
   },
+  ...billingFixtures,
   ...quotasUsageFixtures,
   ...mailSharingFixtures,
   ...datalogsFixtures,

@@ -17,6 +17,7 @@ export function send(app: Express, method: string, prepared: Prepared, token: st
   if (prepared.query) req = req.query(prepared.query);
   const bearer = prepared.token ?? token;
   if (bearer !== null) req = req.set('Authorization', `Bearer ${bearer}`);
+  if (prepared.headers) req = req.set(prepared.headers);
   if (prepared.file) {
     const { field, filename, content, contentType } = prepared.file;
     req = req.attach(field, content, { filename, contentType });
