@@ -1,4 +1,4 @@
-import { displayUnits, fromSI, units, type Quantity, type Unit } from '@crackpoint/sim-core';
+import { displayUnits, fromSI, quantityOfField, units, type Quantity, type Unit } from '@crackpoint/sim-core';
 import type { Knex } from 'knex';
 import type { ResolvedAxis, Sweep } from '../models/index.ts';
 import { StreamReply } from '../routes/route-def.ts';
@@ -53,38 +53,6 @@ const SI_UNITS: Readonly<Record<Quantity, Unit>> = {
   ratio: units.ratio,
 };
 
-/**
- * The quantity of a scenario field, read from the SI unit its name ends in (`seatForceN`,
- * `regulatorSetpointPa`; sim-core's naming rule). Longer suffixes are tried first; a name that
- * names no unit (`ratio`, a count) is a plain number.
- */
-const FIELD_SUFFIXES: readonly (readonly [string, Quantity | null])[] = [
-  ['PaPerKg2S2', null],
-  ['WPerRad2S2', null],
-  ['KgM2', null],
-  ['PerPaS', null],
-  ['SPerPa', null],
-  ['PerPa', null],
-  ['M3PerS', 'volumeFlow'],
-  ['NPerM', 'springRate'],
-  ['ChamberVolumeM3', 'smallVolume'],
-  ['M3', 'volume'],
-  ['M2', 'area'],
-  ['Pa', 'pressure'],
-  ['RadS', 'speed'],
-  ['Kg', 'mass'],
-  ['K', 'temperature'],
-  ['N', 'force'],
-  ['M', 'smallLength'],
-  ['S', 'time'],
-];
-
-export function quantityOfPath(path: string): Quantity | null {
-  const field = path.split('.').pop() ?? path;
-  for (const [suffix, quantity] of FIELD_SUFFIXES) if (field.endsWith(suffix)) return quantity;
-  return null;
-}
-
 function unitFor(quantity: Quantity, system: ExportUnitSystem): Unit {
   return system === 'si' ? SI_UNITS[quantity] : displayUnits[system][quantity];
 }
@@ -123,7 +91,8 @@ interface Column {
 function columnsFor(axes: readonly ResolvedAxis[], level: Sweep['level'], system: ExportUnitSystem): Column[] {
   const columns: Column[] = [{ heading: 'index', cell: (row) => String(row.point_index) }];
   axes.forEach((axis, a) => {
-    const quantity = quantityOfPath(axis.path);
+    // sim-core's naming rule: a field's name ends in its SI unit (seatForceN, regulatorSetpointPa).
+    const quantity = quantityOfField(axis.path);
     const unit = quantity === null ? null : unitFor(quantity, system);
     const key = AXIS_COLUMNS[a] ?? 'axis0';
     columns.push({
