@@ -24,6 +24,28 @@ const routes: RouteRecordRaw[] = [
     meta: { public: true, title: 'Start a workspace' },
   },
   {
+    path: '/invitations/:token',
+    name: 'accept-invitation',
+    component: () => import('@/views/AcceptInvitationView.vue'),
+    props: true,
+    meta: { public: true, title: 'Join a workspace' },
+  },
+  {
+    path: '/reset-password/:token',
+    name: 'reset-password',
+    component: () => import('@/views/ResetPasswordView.vue'),
+    props: true,
+    meta: { public: true, title: 'Set a new password' },
+  },
+  {
+    // Outside the app shell and without signing in: a share link's holder sees this page alone.
+    path: '/shared/:token',
+    name: 'shared',
+    component: () => import('@/views/SharedView.vue'),
+    props: true,
+    meta: { public: true, title: 'Shared' },
+  },
+  {
     // Outside the app shell: the sheet is a page of its own, to print or save as PDF.
     path: '/scenarios/:id/sheet',
     name: 'setup-sheet',
@@ -67,6 +89,18 @@ const routes: RouteRecordRaw[] = [
         name: 'usage',
         component: () => import('@/views/UsageView.vue'),
         meta: { title: 'Usage' },
+      },
+      {
+        path: 'team',
+        name: 'team',
+        component: () => import('@/views/TeamView.vue'),
+        meta: { title: 'Team' },
+      },
+      {
+        path: 'logs',
+        name: 'logs',
+        component: () => import('@/views/DatalogsView.vue'),
+        meta: { title: 'Logs' },
       },
       {
         path: ':pathMatch(.*)*',

@@ -11,6 +11,8 @@ const UNIT_KEY = 'crackpoint.unitSystem'
 const COMPUTE_ROLES: readonly Role[] = ['admin', 'engineer', 'builder']
 /** Roles that may change the shared hardware library (DESIGN.md, roles table). */
 const LIBRARY_EDIT_ROLES: readonly Role[] = ['admin', 'engineer']
+/** Roles that make read-only share links (DESIGN.md: analysts share; builders do not). */
+const SHARE_ROLES: readonly Role[] = ['admin', 'engineer', 'analyst']
 
 function storedUnitSystem(): UnitSystem | null {
   const value = localStorage.getItem(UNIT_KEY)
@@ -28,6 +30,7 @@ export const useSessionStore = defineStore('session', () => {
   const unitSystem = computed<UnitSystem>(() => unitChoice.value ?? user.value?.unitSystem ?? 'us')
   const canCompute = computed(() => user.value !== null && COMPUTE_ROLES.includes(user.value.role))
   const canEditLibrary = computed(() => user.value !== null && LIBRARY_EDIT_ROLES.includes(user.value.role))
+  const canShare = computed(() => user.value !== null && SHARE_ROLES.includes(user.value.role))
 
   async function signIn(email: string, password: string): Promise<void> {
     const result = await authApi.signIn(email, password)
@@ -42,6 +45,13 @@ export const useSessionStore = defineStore('session', () => {
     token.value = result.token
     user.value = result.user
     setUnitSystem(result.user.unitSystem)
+  }
+
+  /** A session the API opened some other way (an accepted invitation, a password reset). */
+  function adopt(result: { token: string; user: User }): void {
+    tokenStorage.set(result.token)
+    token.value = result.token
+    user.value = result.user
   }
 
   /** Loads the profile behind a stored token; a rejected token signs the user out. */
@@ -68,5 +78,5 @@ export const useSessionStore = defineStore('session', () => {
     localStorage.setItem(UNIT_KEY, system)
   }
 
-  return { token, user, isSignedIn, unitSystem, canCompute, canEditLibrary, signIn, register, ensureUser, signOut, setUnitSystem }
+  return { token, user, isSignedIn, unitSystem, canCompute, canEditLibrary, canShare, signIn, register, adopt, ensureUser, signOut, setUnitSystem }
 })
