@@ -7,7 +7,8 @@ import { syntheticLog } from './synthetic-log.ts'
 // About 0.1 psi (1 σ), the scatter of a boost sensor read by a logger (common practice, no source).
 const NOISE_PA = toSI(units.psi, 0.1)
 
-describe('fitPullToLog', () => {
+// Each fit runs tens of pulls: on a loaded machine that can pass vitest's 5 s default, which is no failure of the fit.
+describe('fitPullToLog', { timeout: 60_000 }, () => {
   it('recovers a known ratio and seat force within 2 % from a noisy log synthesised by the model', () => {
     const base = defaultScenario() // starts the search at ratio 1.5 and 129 N
     const truth = { ratio: 1.8, seatForceN: 160 }
