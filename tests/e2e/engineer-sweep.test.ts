@@ -1,11 +1,13 @@
-import type { Page } from 'playwright-core'
+import { readFileSync } from 'node:fs'
+import type { Locator, Page } from 'playwright-core'
 import { afterAll, beforeAll, describe, expect, it } from 'vitest'
 import { screenshotPath, signInAs, startHarness, type Harness } from './helpers/browser-harness.ts'
 
 /**
  * An engineer's sweep in a real browser: a new scenario fed from a CO₂ bottle on the top port, a sweep over
  * the spring seat force, the drive-to-boost ratio and the regulator setpoint, its progress, the heat map
- * with the setpoint cut by a slider, and one point opened as a pull worked out in the browser. Pictured at
+ * with the setpoint cut by a slider, points opened as pulls worked out in the browser, the points table
+ * and its CSV. Pictured at
  * a desktop width and a tablet's; any console error fails the test.
  */
 
@@ -29,6 +31,17 @@ afterAll(async () => {
 /** Plotly draws on its next frames; a moment lets a picture show what a user sees. */
 async function settle(page: Page): Promise<void> {
   await page.waitForTimeout(600)
+}
+
+/**
+ * A picture of one part of the page, cut from a full-page capture taken from the top, so the fixed app bar
+ * stays at the top of the page instead of across the part.
+ */
+async function pictureOf(page: Page, part: Locator, name: string): Promise<void> {
+  await page.evaluate('window.scrollTo(0, 0)')
+  const box = await part.boundingBox()
+  if (!box) throw new Error(`nothing to picture for ${name}`)
+  await page.screenshot({ path: screenshotPath(name), fullPage: true, clip: box })
 }
 
 describe('engineer sweep', () => {
@@ -69,7 +82,7 @@ describe('engineer sweep', () => {
     await expect.poll(() => page.getByTestId('sweep-point-count').textContent()).toBe('30')
     // Static points cost one compute unit per thousand, rounded up per sweep.
     await expect.poll(() => page.getByTestId('sweep-cost').textContent()).toMatch(/Costs 1 compute unit; [\d,]+ compute units left this month/)
-    await page.locator('.v-card', { has: page.getByTestId('sweep-summary') }).screenshot({ path: screenshotPath('engineer-sweep-builder.png') })
+    await pictureOf(page, page.locator('.v-card', { has: page.getByTestId('sweep-summary') }), 'engineer-sweep-builder.png')
 
     await page.getByTestId('start-sweep').click()
     const progress = page.getByTestId('sweep-progress')
@@ -85,22 +98,31 @@ describe('engineer sweep', () => {
     await heat.locator('.main-svg').first().waitFor({ timeout: 30_000 })
     const slice = page.getByTestId('sweep-slice')
     await expect.poll(() => slice.textContent()).toContain('Cut at Regulator setpoint: 8.0 psi')
-    const surfaceAsked = page.waitForResponse((r) => r.url().includes('/surface') && r.url().includes('slice=1'))
+    const surfaceAsked = page.waitForResponse((r) => r.url().includes('/surface') && r.url().includes('at='))
     await page.getByTestId('sweep-slice-slider').locator('[role="slider"]').focus()
     await page.keyboard.press('ArrowRight')
     expect((await surfaceAsked).status()).toBe(200)
     await expect.poll(() => slice.textContent()).toContain('Cut at Regulator setpoint: 12.0 psi')
 
     // Hover reads the cell in the engineer's units.
+    await heat.scrollIntoViewIfNeeded()
     const drag = heat.locator('.nsewdrag').first()
     const box = await drag.boundingBox()
     if (!box) throw new Error('the heat map has no plot area')
     await page.mouse.move(box.x + box.width / 2, box.y + box.height / 2)
     await expect.poll(() => heat.locator('.hoverlayer').textContent()).toMatch(/Crack boost: \d+(\.\d+)? psi/)
     await settle(page)
-    await page.evaluate('window.scrollTo(0, 0)')
-    await page.getByTestId('sweep-results').scrollIntoViewIfNeeded()
-    await page.screenshot({ path: screenshotPath('engineer-sweep-heat-map.png'), fullPage: false })
+    await page.screenshot({ path: screenshotPath('engineer-sweep-heat-map.png') })
+
+    // The plot as a picture: PNG and SVG, named after the metric and the cut.
+    for (const format of ['png', 'svg'] as const) {
+      const saved = page.waitForEvent('download')
+      await page.getByTestId(`heatmap-export-${format}`).click()
+      const file = await saved
+      expect(file.suggestedFilename()).toBe(`crackpoint-sweep-crackBoostPa-cut-2.${format}`)
+      const path = await file.path()
+      expect(readFileSync(path).subarray(0, 4).toString('latin1')).toBe(format === 'png' ? '\x89PNG' : '<svg')
+    }
 
     await page.mouse.click(box.x + box.width / 2, box.y + box.height / 2)
     const pull = page.getByTestId('point-pull')
@@ -108,18 +130,35 @@ describe('engineer sweep', () => {
     await pull.getByTestId('pull-plots').locator('.main-svg').first().waitFor({ timeout: 30_000 })
     await expect.poll(() => page.getByTestId('point-pull-metrics').textContent(), { timeout: 30_000 }).toContain('Settled boost')
 
+    // The points table: ten a page, sorted on the server by any column, a row opening its own pull.
+    const points = page.getByTestId('sweep-points-table')
+    await expect.poll(() => points.textContent()).toContain('1-10 of 30')
+    const firstCell = () => points.locator('tbody tr').first().locator('td').first().textContent()
+    expect(await firstCell()).toBe('1')
+    await points.locator('th', { hasText: 'Crack boost' }).first().click()
+    await expect.poll(firstCell).not.toBe('1')
+    const lowest = await firstCell()
+    await points.locator('tbody tr').first().click()
+    await expect.poll(() => pull.textContent()).toContain(`Point ${lowest}: its pull`)
+
+    // Every point as CSV, fetched with the token and saved by the browser, in the engineer's units.
+    const saved = page.waitForEvent('download')
+    await page.getByTestId('sweep-points-csv').click()
+    const csv = readFileSync(await (await saved).path(), 'utf8').trim().split(/\r?\n/)
+    expect(csv).toHaveLength(31)
+    expect(csv[0]).toContain('psi')
+
+    const card = page.locator('.v-card', { has: page.getByTestId('sweep-summary') })
     await page.getByTestId('view-surface').click()
     await page.locator('[data-testid="surface-plot"] canvas').first().waitFor({ timeout: 30_000 })
     await settle(page)
-    await page.evaluate('window.scrollTo(0, 0)')
-    await page.screenshot({ path: screenshotPath('engineer-sweep-1280.png'), fullPage: true })
+    await pictureOf(page, card, 'engineer-sweep-1280.png')
 
     await page.setViewportSize({ width: 820, height: 1180 })
     await page.getByTestId('view-heatmap').click()
     await heat.locator('.main-svg').first().waitFor({ timeout: 30_000 })
     await settle(page)
-    await page.evaluate('window.scrollTo(0, 0)')
-    await page.screenshot({ path: screenshotPath('engineer-sweep-tablet.png'), fullPage: true })
+    await pictureOf(page, card, 'engineer-sweep-tablet.png')
 
     expect(harness.pageErrors).toEqual([])
     expect(consoleErrors).toEqual([])

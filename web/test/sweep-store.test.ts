@@ -1,7 +1,7 @@
 import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest'
 import { createPinia, setActivePinia } from 'pinia'
 import type { Sweep } from '@/api/types'
-import { POLL_INTERVAL_MS, useSweepStore } from '@/stores/sweep'
+import { RECONNECT_DELAY_MS, useSweepStore } from '@/stores/sweep'
 import { routeFetch } from './mount-app'
 
 const axes = [
@@ -35,26 +35,38 @@ afterEach(() => {
 })
 
 describe('useSweepStore', () => {
-  it('follows a sweep by polling when the server has no event stream, then loads its crack-boost surface', async () => {
-    const progress = [sweepAt(2, 'running'), sweepAt(6, 'done')]
-    const surface = { metric: 'crackBoostPa', x: axes[1], y: axes[0], z: [[1, 2, 3], [4, 5, 6]] }
+  it('opens the event stream again when it drops before a final state, then loads the crack-boost surface', async () => {
+    const surface = { metric: 'crackBoostPa', x: axes[1], y: axes[0], z: [[1, 2, 3], [4, 5, 6]], slice: null }
+    const streams = [
+      'retry: 2000\nevent: state\ndata: {"state":"running","previous":null}\n\nevent: progress\ndata: {"state":"running","pointCount":6,"pointsDone":2,"pointsFailed":0,"pointsPerSecond":null,"secondsLeft":null}\n\n',
+      'event: progress\ndata: {"state":"done","pointCount":6,"pointsDone":6,"pointsFailed":0,"pointsPerSecond":3,"secondsLeft":0}\n\nevent: state\ndata: {"state":"done","previous":"running"}\n\n',
+    ]
     const api = routeFetch({
       'POST /api/sweeps': () => [201, { sweep: sweepAt(0, 'queued') }],
-      'GET /api/sweeps/w1': () => [200, { sweep: progress.shift() ?? sweepAt(6, 'done') }],
       'GET /api/sweeps/w1/surface': () => [200, surface],
-      'GET /api/sweeps/w1/events': () => [404, { error: { code: 'not_found', message: 'Not found.' } }],
     })
-    vi.stubGlobal('fetch', api.fetchStub)
+    let opened = 0
+    vi.stubGlobal('fetch', async (input: string, init?: RequestInit) => {
+      if (!String(input).endsWith('/events')) return api.fetchStub(input, init)
+      opened += 1
+      return new Response(streams.shift() ?? '', { status: 200, headers: { 'Content-Type': 'text/event-stream' } })
+    })
     const store = useSweepStore()
 
     await store.start('s1', 'static', [{ path: 'springs.0.seatForceN', range: { from: 100, to: 150, count: 2 } }])
     await vi.advanceTimersByTimeAsync(0)
+    expect(opened).toBe(1)
     expect(store.sweep?.pointsDone).toBe(2)
     expect(store.progress).toBeCloseTo(100 / 3, 6)
     expect(store.running).toBe(true)
+    expect(store.pointsPerSecond).toBeNull()
     expect(store.surface).toBeNull()
 
-    await vi.advanceTimersByTimeAsync(POLL_INTERVAL_MS)
+    // The server asked for two seconds between tries.
+    await vi.advanceTimersByTimeAsync(RECONNECT_DELAY_MS)
+    expect(opened).toBe(1)
+    await vi.advanceTimersByTimeAsync(2000 - RECONNECT_DELAY_MS)
+    expect(opened).toBe(2)
     expect(store.sweep?.state).toBe('done')
     expect(store.running).toBe(false)
     expect(store.surface?.z).toEqual([[1, 2, 3], [4, 5, 6]])
@@ -70,8 +82,23 @@ describe('useSweepStore', () => {
 
     // Nothing is asked after the sweep is done.
     const asked = api.requests.length
-    await vi.advanceTimersByTimeAsync(POLL_INTERVAL_MS * 4)
+    await vi.advanceTimersByTimeAsync(RECONNECT_DELAY_MS * 10)
     expect(api.requests.length).toBe(asked)
+    expect(opened).toBe(2)
+  })
+
+  it('ends the follow with the reason when the server refuses the stream', async () => {
+    const api = routeFetch({
+      'POST /api/sweeps': () => [201, { sweep: sweepAt(0, 'queued') }],
+      'GET /api/sweeps/w1/events': () => [404, { error: { code: 'not_found', message: 'Sweep not found.' } }],
+    })
+    vi.stubGlobal('fetch', api.fetchStub)
+    const store = useSweepStore()
+    await store.start('s1', 'static', [{ path: 'exhaust.ratio', values: [1, 2] }])
+    await vi.advanceTimersByTimeAsync(0)
+    expect(store.error).toBe('Sweep not found.')
+    await vi.advanceTimersByTimeAsync(RECONNECT_DELAY_MS * 10)
+    expect(api.requests.filter((r) => r.key === 'GET /api/sweeps/w1/events')).toHaveLength(1)
   })
 
   it('shows the field the API names when it refuses a sweep', async () => {
@@ -117,8 +144,7 @@ describe('useSweepStore', () => {
     const store = useSweepStore()
     await store.start('s1', 'both', [{ path: 'exhaust.ratio', values: [1, 1.5, 2] }])
     await vi.advanceTimersByTimeAsync(0)
-    expect(store.followedBy).toBe('events')
-    expect(store.metric).toBe('crackBoostPa')
+        expect(store.metric).toBe('crackBoostPa')
 
     send!('event: progress\ndata: {"state":"running","pointCount":12,"pointsDone":3,"pointsFailed":1,"pointsPerSecond":1.5,"secondsLeft":6}\n\n')
     await vi.advanceTimersByTimeAsync(0)
@@ -135,10 +161,10 @@ describe('useSweepStore', () => {
     expect(store.sweep?.state).toBe('done')
     expect(store.running).toBe(false)
     expect(store.surface?.z).toEqual([[1, 2, 3], [4, 5, 6]])
-    expect(surfaceQueries[0]).toEqual({ metric: 'crackBoostPa', x: '1', y: '0', slice: '0' })
+    expect(surfaceQueries[0]).toEqual({ metric: 'crackBoostPa', x: '1', y: '0', at: '200000' })
 
     await store.view({ metric: 'settledBoostPa', slice: 1 })
-    expect(surfaceQueries[1]).toEqual({ metric: 'settledBoostPa', x: '1', y: '0', slice: '1' })
+    expect(surfaceQueries[1]).toEqual({ metric: 'settledBoostPa', x: '1', y: '0', at: '300000' })
     expect(store.surface?.metric).toBe('settledBoostPa')
     // The sweep's own progress was never polled: the stream carried it.
     expect(api.requests.some((r) => r.key === 'GET /api/sweeps/w1')).toBe(false)

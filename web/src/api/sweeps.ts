@@ -1,7 +1,8 @@
+import { downloadFile, type DownloadedFile } from './download'
 import { readEventStream } from './event-stream'
 import { request } from './http'
 import type { ServerSentEvent } from './sse-parser'
-import type { ListResult, Surface, SurfaceMetric, Sweep, SweepAxisRequest, SweepEstimate, SweepLevel } from './types'
+import type { ListResult, Surface, SurfaceMetric, Sweep, SweepAxisRequest, SweepEstimate, SweepLevel, SweepPointPage, PointSort, UnitSystem } from './types'
 
 const sweepPath = (id: string) => `/api/sweeps/${encodeURIComponent(id)}`
 
@@ -9,8 +10,15 @@ export interface SurfaceQuery {
   metric: SurfaceMetric
   x: number
   y: number
-  /** For a three-axis sweep: the index of the remaining axis's value the surface is cut at. */
-  slice?: number
+  /** For a three-axis sweep: the value (SI) of the remaining axis the surface is cut at. */
+  at?: number
+}
+
+export interface PointsQuery {
+  offset: number
+  limit: number
+  sort: PointSort
+  order: 'asc' | 'desc'
 }
 
 export const sweepsApi = {
@@ -33,6 +41,14 @@ export const sweepsApi = {
   },
   listForScenario(scenarioId: string): Promise<ListResult<Sweep>> {
     return request('/api/sweeps', { query: { scenarioId } })
+  },
+  /** One page of the sweep's stored points. */
+  points(id: string, query: PointsQuery, signal?: AbortSignal): Promise<SweepPointPage> {
+    return request(`${sweepPath(id)}/points`, { query: { ...query }, signal })
+  },
+  /** Every point as CSV in the given units. */
+  pointsCsv(id: string, units: UnitSystem): Promise<DownloadedFile> {
+    return downloadFile(`${sweepPath(id)}/points.csv`, { units }, `sweep-${id}.csv`)
   },
   surface(id: string, query: SurfaceQuery, signal?: AbortSignal): Promise<Surface> {
     return request(`${sweepPath(id)}/surface`, { query: { ...query }, signal })

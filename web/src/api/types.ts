@@ -87,6 +87,8 @@ export interface Surface {
   y: ResolvedAxis
   /** z[iy][ix]; null where the point has no value (never opens, failed, not done). */
   z: (number | null)[][]
+  /** Where a three-axis sweep was cut: the remaining axis and its listed value used; null for two axes. */
+  slice: { axis: number; path: string; index: number; value: number; requested: number | null } | null
 }
 
 /** What a sweep would cost before it is started (`POST /api/sweeps/estimate`). */
@@ -95,4 +97,29 @@ export interface SweepEstimate {
   computeUnits: number
   /** Units left this month: of the member's own limit (null when they have none) and of the workspace's. */
   remaining: { member: number | null; workspace: number }
+}
+
+export type PointStatus = 'ok' | 'never-opens' | 'open-at-zero-boost' | 'failed'
+
+/** A sort key of the points table: the index, an axis by its number, or a stored metric. */
+export type PointSort = 'index' | 'axis0' | 'axis1' | 'axis2' | SurfaceMetric
+
+/** One stored point of a sweep; numbers SI, flags true or false, null where not computed. */
+export interface SweepPointRow {
+  index: number
+  /** The point's value of each axis, by the axis's path. */
+  coordinates: Record<string, number>
+  status: PointStatus
+  dynamicStatus: PointStatus | null
+  error: string | null
+  metrics: Partial<Record<SurfaceMetric, number | boolean | null>>
+}
+
+export interface SweepPointPage {
+  items: SweepPointRow[]
+  total: number
+  offset: number
+  limit: number
+  sort: PointSort
+  order: 'asc' | 'desc'
 }

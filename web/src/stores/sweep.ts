@@ -6,10 +6,10 @@ import { sweepsApi } from '@/api/sweeps'
 import type { Surface, SurfaceMetric, Sweep, SweepAxisRequest, SweepEstimate, SweepLevel, SweepState } from '@/api/types'
 import { metricsFor } from '@/composables/sweep-metrics'
 
-/** How often a running sweep is asked for its progress when its event stream is not there. */
-export const POLL_INTERVAL_MS = 500
-/** A dropped event stream is opened again after this long. */
+/** A dropped event stream is opened again after this long, unless the server's `retry:` says otherwise. */
 export const RECONNECT_DELAY_MS = 1000
+/** With the most streams a member may hold already open, wait longer before asking again. */
+export const TOO_MANY_STREAMS_DELAY_MS = 5000
 
 const FINISHED: ReadonlySet<SweepState> = new Set(['done', 'failed', 'cancelled'])
 const STATES: ReadonlySet<string> = new Set(['queued', 'running', 'done', 'failed', 'cancelled'])
@@ -41,9 +41,9 @@ export interface SurfaceView {
 }
 
 /**
- * The sweep of the open scenario: what a new one would cost, starting it, following its progress (its
- * event stream, or polling where the server has none), and the surface of a chosen metric once every point
- * is in. The surface's x is axis 1 and y axis 0; a third axis is cut at `slice`.
+ * The sweep of the open scenario: what a new one would cost, starting it, following its progress on its
+ * event stream, and the surface of a chosen metric once every point is in. The surface's x is axis 1 and
+ * y axis 0; a third axis is cut at its value number `slice`, asked for as that value (`at`).
  */
 export const useSweepStore = defineStore('sweep', () => {
   const sweep = shallowRef<Sweep | null>(null)
@@ -56,8 +56,6 @@ export const useSweepStore = defineStore('sweep', () => {
   const errorCode = ref<string | null>(null)
   const pointsPerSecond = ref<number | null>(null)
   const secondsLeft = ref<number | null>(null)
-  /** How progress arrives: the server's event stream, or asking again every POLL_INTERVAL_MS. */
-  const followedBy = ref<'events' | 'polling' | null>(null)
   const metric = ref<SurfaceMetric>('crackBoostPa')
   const slice = ref(0)
 
@@ -73,8 +71,7 @@ export const useSweepStore = defineStore('sweep', () => {
   let estimateController: AbortController | null = null
   /** Guards against answers that arrive after the user moved to another sweep or scenario. */
   let generation = 0
-  /** The server has no event stream for sweeps: polling is used from then on. */
-  let eventsMissing = false
+  let retryMs = RECONNECT_DELAY_MS
 
   const running = computed(() => sweep.value !== null && !FINISHED.has(sweep.value.state))
   const progress = computed(() => {
@@ -105,7 +102,6 @@ export const useSweepStore = defineStore('sweep', () => {
     fieldErrors.value = {}
     pointsPerSecond.value = null
     secondsLeft.value = null
-    followedBy.value = null
   }
 
   async function loadSurface(mine: number): Promise<void> {
@@ -116,7 +112,8 @@ export const useSweepStore = defineStore('sweep', () => {
     surfaceController = own
     surfaceLoading.value = true
     try {
-      const query = { metric: metric.value, x: 1, y: 0, ...(s.axes.length > 2 ? { slice: slice.value } : {}) }
+      const cut = s.axes[2]?.values[slice.value]
+      const query = { metric: metric.value, x: 1, y: 0, ...(cut !== undefined ? { at: cut } : {}) }
       const result = await sweepsApi.surface(s.id, query, own.signal)
       if (mine === generation) surface.value = result
     } catch (cause) {
@@ -163,6 +160,7 @@ export const useSweepStore = defineStore('sweep', () => {
   }
 
   function onEvent(event: ServerSentEvent): void {
+    if (event.retryMs !== undefined) retryMs = event.retryMs
     if (event.type !== 'progress' && event.type !== 'state') return
     const data = parseJson(event.data)
     if (!data) return
@@ -171,53 +169,28 @@ export const useSweepStore = defineStore('sweep', () => {
     applyProgress(body)
   }
 
-  async function poll(id: string, mine: number): Promise<void> {
-    if (mine !== generation) return
-    followedBy.value = 'polling'
-    controller = new AbortController()
-    try {
-      const result = await sweepsApi.get(id, controller.signal)
-      if (mine !== generation) return
-      sweep.value = result.sweep
-    } catch (cause) {
-      if (isAbort(cause) || mine !== generation) return
-      // A dropped poll is retried; an answer from the API (404, 401) ends the follow.
-      if (cause instanceof ApiError && cause.status !== 0) {
-        error.value = messageOf(cause, 'The sweep could not be followed.')
-        return
-      }
-    } finally {
-      controller = null
-    }
-    if (sweep.value && FINISHED.has(sweep.value.state)) return finish(mine)
-    timer = setTimeout(() => void poll(id, mine), POLL_INTERVAL_MS)
-  }
-
   async function follow(id: string, mine: number): Promise<void> {
     if (mine !== generation) return
-    if (eventsMissing) return poll(id, mine)
-    followedBy.value = 'events'
     const own = new AbortController()
     controller = own
+    let crowded = false
     try {
       await sweepsApi.events(id, onEvent, own.signal)
     } catch (cause) {
       if (isAbort(cause) || mine !== generation) return
-      if (cause instanceof ApiError && cause.status === 404 && sweep.value?.id === id) {
-        eventsMissing = true
-        return poll(id, mine)
-      }
-      if (cause instanceof ApiError && cause.status !== 0) {
+      // A dropped connection, or too many streams open at once (other tabs), is tried again shortly;
+      // any other answer (404, 401) ends the follow.
+      if (cause instanceof ApiError && cause.status !== 0 && cause.status !== 429) {
         error.value = messageOf(cause, 'The sweep could not be followed.')
         return
       }
+      crowded = cause instanceof ApiError && cause.status === 429
     } finally {
       if (controller === own) controller = null
     }
     if (mine !== generation) return
     if (sweep.value && FINISHED.has(sweep.value.state)) return finish(mine)
-    // The stream ended or dropped before a final state: open it again shortly.
-    timer = setTimeout(() => void follow(id, mine), RECONNECT_DELAY_MS)
+    timer = setTimeout(() => void follow(id, mine), crowded ? Math.max(retryMs, TOO_MANY_STREAMS_DELAY_MS) : retryMs)
   }
 
   async function start(scenarioId: string, level: SweepLevel, axes: SweepAxisRequest[]): Promise<void> {
@@ -326,7 +299,6 @@ export const useSweepStore = defineStore('sweep', () => {
     fieldErrors,
     pointsPerSecond,
     secondsLeft,
-    followedBy,
     metric,
     slice,
     metrics,

@@ -9,7 +9,7 @@ import { createPullClient, PullCancelled, type PullClient } from '@/workers/pull
  * sweep's scenario and axes, and the pull runs in the browser's pull worker, so opening it costs the server
  * nothing. A click on another point replaces the run still going.
  */
-export const useSweepPointStore = defineStore('sweep-point', () => {
+export const usePointPullStore = defineStore('point-pull', () => {
   const point = shallowRef<SweepPoint | null>(null)
   const result = shallowRef<PullResult | null>(null)
   const running = ref(false)
