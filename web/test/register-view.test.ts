@@ -41,6 +41,8 @@ describe('RegisterView', () => {
     const { wrapper, router } = await mountApp(SignInView, ROUTES, '/sign-in')
     expect(wrapper.text()).toContain('New here?')
     await wrapper.find('[data-testid="to-register"]').trigger('click')
+    // A dialog on the page (Vuetify's back-button guard) lets a navigation finish only after a timer.
+    await new Promise((resolve) => setTimeout(resolve, 0))
     await flushPromises()
     expect(router.currentRoute.value.path).toBe('/register')
   })
@@ -107,6 +109,8 @@ describe('RegisterView', () => {
     const metric = wrapper.findAll('input[type="radio"]').find((input) => (input.element as HTMLInputElement).value === 'metric')
     await metric?.setValue(true)
     await wrapper.find('form').trigger('submit')
+    // A dialog on the page (Vuetify's back-button guard) lets a navigation finish only after a timer.
+    await new Promise((resolve) => setTimeout(resolve, 0))
     await flushPromises()
 
     expect((requests[0]?.body as { unitSystem: string }).unitSystem).toBe('metric')

@@ -64,6 +64,8 @@ describe('SignInView', () => {
     await wrapper.find('input[type="email"]').setValue('engineer@harrowlane.example')
     await wrapper.find('input[type="password"]').setValue('crackpoint-demo')
     await wrapper.find('form').trigger('submit')
+    // A dialog on the page (Vuetify's back-button guard) lets a navigation finish only after a timer.
+    await new Promise((resolve) => setTimeout(resolve, 0))
     await flushPromises()
 
     expect(localStorage.getItem('crackpoint.token')).toBe('signed.token.value')
