@@ -91,6 +91,13 @@ const routes: RouteRecordRaw[] = [
         meta: { title: 'Usage' },
       },
       {
+        // Admins buy compute here; the payment provider's checkout sends the buyer back with ?purchase=<id>.
+        path: 'billing',
+        name: 'billing',
+        component: () => import('@/views/BillingView.vue'),
+        meta: { title: 'Billing' },
+      },
+      {
         path: 'team',
         name: 'team',
         component: () => import('@/views/TeamView.vue'),
