@@ -5,6 +5,7 @@ import { datalogRoutes } from './datalogs.ts';
 import { healthRoutes } from './health.ts';
 import { libraryRoutes } from './library.ts';
 import { openApiRoutes } from './openapi.ts';
+import { queueHealthRoutes } from './queue-health.ts';
 import type { AnyRoute } from './route-def.ts';
 import { scenarioRoutes } from './scenarios.ts';
 import { sharingRoutes } from './sharing.ts';
@@ -29,6 +30,7 @@ export const routeTable: readonly AnyRoute[] = [
   ...billingRoutes,
   ...datalogRoutes,
   ...usageRoutes,
+  ...queueHealthRoutes,
   ...teamRoutes,
   ...sharingRoutes,
 ];

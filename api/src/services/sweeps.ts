@@ -13,7 +13,7 @@ import { assertUnitsAvailable, estimateSweepUnits, lockWorkspaceUnits, readMonth
 import { findScenario } from './scenarios.ts';
 
 /** What the API needs of the sweep queue: enqueue chunks and report its health. */
-export type SweepQueue = Pick<Queue<SweepChunkJob>, 'name' | 'addBulk' | 'getJobCounts' | 'getJob' | 'remove'>;
+export type SweepQueue = Pick<Queue<SweepChunkJob>, 'name' | 'addBulk' | 'getJobCounts' | 'getWorkersCount' | 'getJob' | 'remove'>;
 
 export interface SweepDeps {
   knex: Knex;

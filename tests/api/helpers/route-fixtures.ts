@@ -4,6 +4,7 @@ import { TEST_PASSWORD, type Role, type TestWorkspace } from './context.ts';
 import { billingFixtures } from './fixtures-billing.ts';
 import { mailSharingFixtures } from './fixtures-mail-sharing.ts';
 import { quotasUsageFixtures } from './fixtures-quotas-usage.ts';
+import { queueHealthFixtures } from './fixtures-queue-health.ts';
 import { sweepResultsFixtures } from './fixtures-sweep-results.ts';
 import { LIBRARY_TABLES, PART_SAMPLES, type LibraryTable, type Side, type World } from './world.ts';
 import { datalogsFixtures } from './fixtures-datalogs.ts';
@@ -123,6 +124,7 @@ export const routeFixtures: Record<string, RouteFixture> = {
   ...mailSharingFixtures,
   ...datalogsFixtures,
   ...sweepResultsFixtures,
+  ...queueHealthFixtures,
 };
 
 /** Route ids of a library kind, as the API names them (listSprings, getSpring, …). */
