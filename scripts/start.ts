@@ -6,6 +6,7 @@ import { CleanupStack } from './lib/cleanup-stack.ts'
 import { parseConfig } from './lib/config.ts'
 import { demoAccounts } from './lib/demo-accounts.ts'
 import { isPortOpen } from './lib/is-port-open.ts'
+import { consoleLineFormatter } from './lib/log-lines.ts'
 import { startMailCatcher } from './lib/mail-catcher.ts'
 import { LOCAL_PAYMENT_KEYS, paymentFakeEnv, startPaymentFake } from './lib/payment-fake.ts'
 import { runMain } from './lib/run-main.ts'
@@ -26,7 +27,7 @@ runMain(async () => {
   const config = parseConfig(process.env, { mode: 'dev' })
   const cleanup = new CleanupStack()
   const abort = new AbortController()
-  const children = new ChildGroup(['api', 'worker'])
+  const children = new ChildGroup(['api', 'worker'], consoleLineFormatter(process.env))
   let stopSignal: NodeJS.Signals | null = null
   const stopRequested = new Promise<NodeJS.Signals>((resolvePromise) => {
     const onSignal = (signal: NodeJS.Signals) => {

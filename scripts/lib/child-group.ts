@@ -26,7 +26,11 @@ export class ChildGroup {
   /** Settles when any child ends, for whatever reason. */
   readonly firstExit: Promise<ChildExit> = new Promise((resolvePromise) => (this.resolveFirstExit = resolvePromise))
 
-  constructor(names: readonly string[]) {
+  /** `format` rewrites each output line before it is printed (the short form of JSON log lines). */
+  constructor(
+    names: readonly string[],
+    private readonly format: (line: string) => string = (line) => line,
+  ) {
     this.width = Math.max(...names.map((n) => n.length))
   }
 
@@ -37,8 +41,8 @@ export class ChildGroup {
     const member: Member = { name, child, exited: false }
     this.members.push(member)
     const prefix = `[${name.padEnd(this.width)}] `
-    createInterface({ input: child.stdout! }).on('line', (line) => process.stdout.write(prefix + line + '\n'))
-    createInterface({ input: child.stderr! }).on('line', (line) => process.stderr.write(prefix + line + '\n'))
+    createInterface({ input: child.stdout! }).on('line', (line) => process.stdout.write(prefix + this.format(line) + '\n'))
+    createInterface({ input: child.stderr! }).on('line', (line) => process.stderr.write(prefix + this.format(line) + '\n'))
     child.on('error', (error) => {
       process.stderr.write(`${prefix}could not start: ${error.message}\n`)
       member.exited = true
