@@ -65,8 +65,9 @@ describe('team invitation and password reset', () => {
 
     const reset = await waitForMail(invitee, 2)
     await page.goto(`${baseUrl}${localPath(linkIn(reset, 'http'))}`)
-    await page.getByLabel('New password', { exact: true }).fill('a brand new secret')
-    await page.getByLabel('New password again').fill('a brand new secret')
+    await page.getByTestId('reset-new').locator('input').fill('a brand new secret')
+    await page.getByTestId('reset-repeat').locator('input').fill('a brand new secret')
+    expect(await page.getByTestId('reset-repeat').locator('input').inputValue()).toBe('a brand new secret')
     await page.screenshot({ path: screenshotPath('reset-password.png') })
     await page.getByRole('button', { name: 'Set the new password' }).click()
     await page.waitForURL(/\/scenarios$/)
