@@ -32,7 +32,7 @@ export interface SweepChunkOutcome {
  * Points per batch: the sweep's state is checked and progress recorded between batches, so a cancel
  * takes effect within one batch. A static point takes microseconds, a dynamic one a whole pull.
  */
-const BATCH_POINTS = { static: 500, dynamic: 4, both: 4 } as const;
+const BATCH_POINTS = { static: 500, dynamic: 16, both: 16 } as const;
 
 const axesSchema = z
   .array(z.object({ path: z.string().min(1), values: z.array(z.number()).min(1) }))
@@ -59,7 +59,11 @@ const computeHere: ComputeBatch = async (batch: PointBatch) =>
 
 const STOPPED_STATES = ['cancelled', 'failed'];
 
-/** Counters are recounted from sweep_points rather than incremented, so a point written twice counts once. */
+/**
+ * The chunk's final counters are recounted from sweep_points, so whatever a crashed or repeated run left
+ * behind, a finished chunk's numbers are the table's. Between batches they are only added to (see
+ * writeBatch): recounting the whole sweep after every batch would cost O(points²) over a large sweep.
+ */
 async function recount(trx: Knex.Transaction, sweepId: string): Promise<{ done: number; failed: number }> {
   const counts = await trx('sweep_points')
     .where({ sweep_id: sweepId })
@@ -73,6 +77,8 @@ interface LockedSweep {
   level: SweepLevel;
   workspace_id: string;
   created_by: string | null;
+  points_done: number;
+  points_failed: number;
   compute_units: number;
   usage_month: string | null;
 }
@@ -86,6 +92,8 @@ async function lockSweep(trx: Knex.Transaction, sweepId: string): Promise<Locked
       'level',
       'workspace_id',
       'created_by',
+      'points_done',
+      'points_failed',
       'compute_units',
       // As text: a date column would come back as a Date at local midnight.
       trx.raw("to_char(coalesce(usage_month, date_trunc('month', created_at at time zone 'UTC')), 'YYYY-MM-DD') as usage_month"),
@@ -135,8 +143,23 @@ async function writeBatch(knex: Knex, sweepId: string, rows: PointRow[]): Promis
   return knex.transaction(async (trx) => {
     const sweep = await lockSweep(trx, sweepId);
     if (!sweep || STOPPED_STATES.includes(sweep.state)) return 'stopped';
+    // Under the sweep row's lock no other run writes this sweep's points, so what is there now is what
+    // this batch does not add. A point is a pure function of its index: a row written again keeps its status.
+    const present = new Set(
+      await trx('sweep_points')
+        .where({ sweep_id: sweepId })
+        .whereIn(
+          'point_index',
+          rows.map((row) => row.point_index),
+        )
+        .pluck<number[]>('point_index'),
+    );
     await trx('sweep_points').insert(rows).onConflict(['sweep_id', 'point_index']).merge([...POINT_ROW_UPDATE_COLUMNS]);
-    const counts = await recount(trx, sweepId);
+    const added = rows.filter((row) => !present.has(row.point_index));
+    const counts = {
+      done: sweep.points_done + added.length,
+      failed: sweep.points_failed + added.filter((row) => row.status === 'failed').length,
+    };
     await trx('sweeps')
       .where({ id: sweepId })
       .update({ points_done: counts.done, points_failed: counts.failed, updated_at: trx.fn.now() });
@@ -241,9 +264,21 @@ export async function processSweepChunk(deps: SweepChunkDeps, payload: unknown):
   let computed = 0;
   let failed = 0;
   const batchPoints = BATCH_POINTS[level];
-  for (let first = 0; first < todo.length; first += batchPoints) {
-    const rows = await compute({ sweepId, scenario, axes, level, indices: todo.slice(first, first + batchPoints) });
+  // The next batch is computed while the last one is written, so the point thread is not idle during
+  // the database round trips. Its promise is marked handled at once: a fault while a write is awaited is
+  // raised where the batch is awaited, not as an unhandled rejection that would end the process.
+  const computeBatch = (first: number) => {
+    const batch = compute({ sweepId, scenario, axes, level, indices: todo.slice(first, first + batchPoints) });
+    batch.catch(() => undefined);
+    return batch;
+  };
+  let pending = todo.length > 0 ? computeBatch(0) : undefined;
+  for (let first = 0; pending !== undefined; first += batchPoints) {
+    const rows = await pending;
+    pending = first + batchPoints < todo.length ? computeBatch(first + batchPoints) : undefined;
     if ((await writeBatch(knex, sweepId, rows)) === 'stopped') {
+      // The batch in flight is not wanted; waiting for it lets its thread finish before the job ends.
+      await pending?.catch(() => undefined);
       const state = (await knex('sweeps').where({ id: sweepId }).first<{ state: string } | undefined>('state'))?.state ?? 'missing';
       deps.logger?.debug({ sweepId, chunkIndex, computed }, 'sweep stopped; chunk left unfinished');
       return { sweepId, chunkIndex, computed, failed, sweepState: state, skipped: 'sweep-stopped' };
