@@ -233,6 +233,29 @@ describe('a 3 × 3 static sweep, end to end with a real worker', () => {
   });
 });
 
+describe('GET /api/sweeps/:id scenarioSnapshot', () => {
+  it('gives the scenario the points were computed from, not the scenario as saved since, and lists leave it out', async () => {
+    const base = await request(ctx.app).post('/api/scenarios').set(bearer(tokens.engineer)).send({ name: 'Snapshot base' });
+    const own = base.body.scenario;
+    const created = await request(ctx.app).post('/api/sweeps').set(bearer(tokens.engineer)).send({ scenarioId: own.id, axes: [axes3x3[1]] });
+    expect(created.status).toBe(201);
+    expect(created.body.sweep).not.toHaveProperty('scenarioSnapshot');
+
+    const edited = { ...own.data, exhaust: { ...own.data.exhaust, ratio: 2.4 } };
+    const saved = await request(ctx.app).patch(`/api/scenarios/${own.id}`).set(bearer(tokens.engineer)).send({ data: edited, version: own.version });
+    expect(saved.status).toBe(200);
+
+    const shown = await request(ctx.app).get(`/api/sweeps/${created.body.sweep.id}`).set(bearer(tokens.analyst));
+    expect(shown.status).toBe(200);
+    expect(shown.body.sweep.scenarioSnapshot).toEqual(defaultScenario());
+    expect(shown.body.sweep.scenarioSnapshot.exhaust.ratio).not.toBe(2.4);
+
+    const list = await request(ctx.app).get(`/api/sweeps?scenarioId=${own.id}`).set(bearer(tokens.analyst));
+    expect(list.body.items).toHaveLength(1);
+    expect(list.body.items[0]).not.toHaveProperty('scenarioSnapshot');
+  });
+});
+
 describe('a three-axis sweep', () => {
   it('cuts the surface at the chosen value of the third axis', async () => {
     const axes = [...axes3x3, { path: 'springs.0.rateNPerM', values: [1000, 5000] }];

@@ -58,7 +58,7 @@ async function mountTable(points: SweepPointRow[]) {
   })
   vi.stubGlobal('fetch', api.fetchStub)
   const opened: number[] = []
-  const Host = defineComponent({ setup: () => () => h(SweepPointsTable, { canOpen: true, onOpen: (i: number) => opened.push(i) }) })
+  const Host = defineComponent({ setup: () => () => h(SweepPointsTable, { onOpen: (i: number) => opened.push(i) }) })
   const mounted = await mountApp(Host, [], '/')
   useSessionStore().setUnitSystem('us')
   useSweepStore().sweep = sweep

@@ -59,9 +59,11 @@ const sweep: Sweep = {
 
 type Plotted = HTMLElement & { plotted?: { data: { type: string; z: (number | null)[][]; text: string[][] }[]; layout: { xaxis?: { ticktext?: string[] } } } }
 
+/** `snapshot` is the scenarioSnapshot GET /api/sweeps/w1 answers: the copy the sweep took, not the saved scenario. */
 async function mountResults(snapshot: Scenario | null) {
   const surfaceAsked: URLSearchParams[] = []
   const api = routeFetch({
+    'GET /api/sweeps/w1': () => [200, { sweep: { ...sweep, scenarioSnapshot: snapshot } }],
     'GET /api/sweeps/w1/surface': (_body, url) => {
       surfaceAsked.push(url.searchParams)
       // 68 948 Pa = 10 psi, 34 474 Pa = 5 psi; one point never opens.
@@ -82,14 +84,14 @@ async function mountResults(snapshot: Scenario | null) {
     'GET /api/sweeps/w1/points': () => [200, { items: [], total: 0, offset: 0, limit: 25, sort: 'index', order: 'asc' }],
   })
   vi.stubGlobal('fetch', api.fetchStub)
-  const Host = defineComponent({ setup: () => () => h(SweepResults, { snapshot }) })
+  const Host = defineComponent({ setup: () => () => h(SweepResults) })
   const mounted = await mountApp(Host)
   useSessionStore().setUnitSystem('us')
   const store = useSweepStore()
   store.sweep = sweep
   await store.view({ metric: 'crackBoostPa' })
   await flushPromises()
-  return { ...mounted, surfaceAsked, store }
+  return { ...mounted, surfaceAsked, store, api }
 }
 
 describe('SweepResults', () => {
@@ -133,11 +135,24 @@ describe('SweepResults', () => {
     expect(wrapper.find('[data-testid="point-pull-metrics"]').text()).toContain('Settled boost')
   })
 
-  it('says why a point cannot be opened once the scenario was saved after the sweep', async () => {
+  it("opens points from the sweep's own snapshot, asked for once per sweep", async () => {
+    const { wrapper, api } = await mountResults(co2Scenario())
+    expect(wrapper.find('[data-testid="sweep-pick-hint"]').text()).toBe("Click a cell to open that point's pull.")
+    wrapper.findComponent(SurfacePlot).vm.$emit('pick', 0, 0)
+    await flushPromises()
+    wrapper.findComponent(SurfacePlot).vm.$emit('pick', 1, 1)
+    await flushPromises()
+    expect(runs).toHaveLength(2)
+    // The snapshot's CO2 supply, which the default scenario lacks, is what the points ran.
+    expect(runs.map((r) => r.supply.kind)).toEqual(['co2', 'co2'])
+    expect(api.requests.filter((r) => r.key === 'GET /api/sweeps/w1')).toHaveLength(1)
+  })
+
+  it('says why no point opens when the model no longer accepts the snapshot', async () => {
     const { wrapper } = await mountResults(null)
-    expect(wrapper.find('[data-testid="sweep-pick-hint"]').text()).toContain('saved again after this sweep ran')
     wrapper.findComponent(SurfacePlot).vm.$emit('pick', 0, 0)
     await flushPromises()
     expect(runs).toHaveLength(0)
+    expect(wrapper.find('[data-testid="point-pull-error"]').text()).toContain('no longer accepted')
   })
 })

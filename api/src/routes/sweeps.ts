@@ -4,6 +4,7 @@ import {
   listSweepsQuerySchema,
   surfaceQuerySchema,
   surfaceSchema,
+  sweepDetailResponseSchema,
   sweepListSchema,
   sweepResponseSchema,
 } from '../schemas/sweeps.ts';
@@ -55,13 +56,13 @@ export const sweepRoutes = [
     id: 'getSweep',
     method: 'get',
     path: '/sweeps/:id',
-    summary: 'One sweep and its progress',
+    summary: 'One sweep, its progress and the scenario its points were computed from',
     tag: 'Sweeps',
     access: ROLES.everyone,
     scope: 'object',
     resource: 'Sweep',
     params: idParamsSchema,
-    success: { status: 200, description: 'The sweep', schema: sweepResponseSchema },
+    success: { status: 200, description: 'The sweep with its scenarioSnapshot', schema: sweepDetailResponseSchema },
     handler: async ({ deps, auth, params }) => ({ sweep: await getSweep(deps.knex, auth.workspaceId, params.id) }),
   }),
   defineRoute({

@@ -1,4 +1,4 @@
-import { sweepLevelSchema, sweepSpecSchema } from '@crackpoint/sim-core';
+import { scenarioSchema, sweepLevelSchema, sweepSpecSchema } from '@crackpoint/sim-core';
 import { z } from 'zod';
 import { uuidSchema } from './common.ts';
 
@@ -80,6 +80,16 @@ export const sweepViewSchema = z.object({
 });
 export type SweepView = z.infer<typeof sweepViewSchema>;
 
+/** One sweep on its own: its view and the copy of the scenario its points were computed from (not in lists, to keep them small). */
+export const sweepDetailSchema = sweepViewSchema.extend({
+  /**
+   * The scenario as it was when the sweep was made, never as edited since, read through the current model
+   * (inputs added since get their defaults); null when the model no longer accepts it.
+   */
+  scenarioSnapshot: scenarioSchema.nullable(),
+});
+export type SweepDetail = z.infer<typeof sweepDetailSchema>;
+
 export const surfaceSchema = z.object({
   metric: z.enum(SURFACE_METRICS),
   x: axisSchema,
@@ -94,4 +104,5 @@ export const surfaceSchema = z.object({
 export type Surface = z.infer<typeof surfaceSchema>;
 
 export const sweepResponseSchema = z.object({ sweep: sweepViewSchema });
+export const sweepDetailResponseSchema = z.object({ sweep: sweepDetailSchema });
 export const sweepListSchema = z.object({ items: z.array(sweepViewSchema), total: z.number().int() });

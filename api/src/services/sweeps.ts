@@ -1,4 +1,4 @@
-import { countPoints, resolveAxes } from '@crackpoint/sim-core';
+import { countPoints, parseScenario, resolveAxes } from '@crackpoint/sim-core';
 import { enqueueChunks, jobIdFor, type SweepChunkJob } from '@crackpoint/worker';
 import type { Queue } from 'bullmq';
 import type { Knex } from 'knex';
@@ -6,7 +6,7 @@ import type { Logger } from 'pino';
 import type { Config } from '../config.ts';
 import { AppError, type FieldErrors } from '../errors/index.ts';
 import { Sweep, type ResolvedAxis } from '../models/index.ts';
-import type { CreateSweepBody, ListSweepsQuery, SweepView } from '../schemas/sweeps.ts';
+import type { CreateSweepBody, ListSweepsQuery, SweepDetail, SweepView } from '../schemas/sweeps.ts';
 import type { SweepEstimate } from '../schemas/usage.ts';
 import type { AuthContext } from './auth.ts';
 import { assertUnitsAvailable, estimateSweepUnits, lockWorkspaceUnits, readMonthUnits, usableBy, usageMonthOf } from './compute-units.ts';
@@ -139,8 +139,11 @@ async function findSweep(knex: Knex, workspaceId: string, id: string): Promise<S
   return sweep;
 }
 
-export async function getSweep(knex: Knex, workspaceId: string, id: string): Promise<SweepView> {
-  return presentSweep(await findSweep(knex, workspaceId, id));
+export async function getSweep(knex: Knex, workspaceId: string, id: string): Promise<SweepDetail> {
+  const sweep = await findSweep(knex, workspaceId, id);
+  // A snapshot the model no longer accepts must not stop the sweep's progress and results from showing.
+  const snapshot = parseScenario(sweep.scenarioSnapshot);
+  return { ...presentSweep(sweep), scenarioSnapshot: snapshot.ok ? snapshot.scenario : null };
 }
 
 /**

@@ -2,7 +2,7 @@ import { downloadFile, type DownloadedFile } from './download'
 import { readEventStream } from './event-stream'
 import { request } from './http'
 import type { ServerSentEvent } from './sse-parser'
-import type { ListResult, Surface, SurfaceMetric, Sweep, SweepAxisRequest, SweepEstimate, SweepLevel, SweepPointPage, PointSort, UnitSystem } from './types'
+import type { ListResult, Surface, SurfaceMetric, Sweep, SweepAxisRequest, SweepDetail, SweepEstimate, SweepLevel, SweepPointPage, PointSort, UnitSystem } from './types'
 
 const sweepPath = (id: string) => `/api/sweeps/${encodeURIComponent(id)}`
 
@@ -29,7 +29,8 @@ export const sweepsApi = {
   estimate(scenarioId: string, level: SweepLevel, axes: SweepAxisRequest[], signal?: AbortSignal): Promise<{ estimate: SweepEstimate }> {
     return request('/api/sweeps/estimate', { method: 'POST', body: { scenarioId, level, axes }, signal })
   },
-  get(id: string, signal?: AbortSignal): Promise<{ sweep: Sweep }> {
+  /** The sweep with its scenarioSnapshot, which lists leave out. */
+  get(id: string, signal?: AbortSignal): Promise<{ sweep: SweepDetail }> {
     return request(sweepPath(id), { signal })
   },
   /** The sweep's progress as server-sent events until it reaches a final state. */

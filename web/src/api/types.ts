@@ -56,6 +56,12 @@ export interface Sweep {
 
 export type SweepLevel = Sweep['level']
 
+/** One sweep as GET /api/sweeps/:id gives it, with the scenario its points were computed from. */
+export interface SweepDetail extends Sweep {
+  /** null: the current model no longer accepts the copy the sweep took. */
+  scenarioSnapshot: Scenario | null
+}
+
 /** The static level's metrics. */
 export type StaticMetric = 'crackBoostPa' | 'fullOpenBoostPa'
 
