@@ -1,6 +1,7 @@
 import { afterEach, describe, expect, it, vi } from 'vitest'
 import { defineComponent, h } from 'vue'
-import { enableAutoUnmount, flushPromises } from '@vue/test-utils'
+import { enableAutoUnmount, flushPromises, type VueWrapper } from '@vue/test-utils'
+import { VSelect } from 'vuetify/components'
 import type { Sweep, SweepPointRow } from '@/api/types'
 import { filenameFrom } from '@/api/download'
 import SweepPointsTable from '@/components/SweepPointsTable.vue'
@@ -51,9 +52,11 @@ async function mountTable(points: SweepPointRow[]) {
       const sort = url.searchParams.get('sort')
       const ordered = sort === 'crackBoostPa' ? [...points].sort((a, b) => Number(a.metrics.crackBoostPa ?? 0) - Number(b.metrics.crackBoostPa ?? 0)) : points
       if (url.searchParams.get('order') === 'desc') ordered.reverse()
+      const wanted = url.searchParams.get('status')?.split(',')
+      const kept = wanted ? ordered.filter((p) => wanted.includes(p.status)) : ordered
       const offset = Number(url.searchParams.get('offset'))
       const limit = Number(url.searchParams.get('limit'))
-      return [200, { items: ordered.slice(offset, offset + limit), total: points.length, offset, limit, sort, order: url.searchParams.get('order') }]
+      return [200, { items: kept.slice(offset, offset + limit), total: kept.length, offset, limit, sort, order: url.searchParams.get('order') }]
     },
   })
   vi.stubGlobal('fetch', api.fetchStub)
@@ -86,6 +89,36 @@ describe('SweepPointsTable', () => {
 
     await wrapper.findAll('tbody tr')[1]!.trigger('click')
     expect(opened).toEqual([1])
+  })
+
+  it('filters the points by result on the server, back to the first page, and clears the filter', async () => {
+    const many = Array.from({ length: 14 }, (_, i) => row(i, 100 + i, 1, i % 3 === 0 ? null : 60_000))
+    const { wrapper, asked } = await mountTable(many)
+    const cells = () => wrapper.findAll('tbody tr').map((tr) => tr.findAll('td').map((td) => td.text()))
+    await wrapper.find('.v-pagination__next button').trigger('click')
+    await flushPromises()
+    expect(asked.at(-1)?.get('offset')).toBe('10')
+
+    const filter = wrapper.findComponent('[data-testid="sweep-points-status"]') as VueWrapper<InstanceType<typeof VSelect>>
+    expect((filter.props('items') as { title: string }[]).map((i) => i.title)).toEqual(['Opens', 'Never opens', 'Open at zero boost', 'Failed'])
+    const before = asked.length
+    filter.vm.$emit('update:modelValue', ['never-opens', 'failed'])
+    await flushPromises()
+    // One request for the new filter, from the first page.
+    expect(asked.length).toBe(before + 1)
+    expect(Object.fromEntries(asked.at(-1)!)).toEqual({ offset: '0', limit: '10', sort: 'index', order: 'asc', status: 'never-opens,failed' })
+    expect(cells().map((c) => c[0])).toEqual(['1', '4', '7', '10', '13'])
+    expect(cells().every((c) => c[3] === 'Never opens')).toBe(true)
+
+    filter.vm.$emit('update:modelValue', ['failed'])
+    await flushPromises()
+    expect(asked.at(-1)?.get('status')).toBe('failed')
+    expect(wrapper.find('[data-testid="sweep-points-table"]').text()).toContain('No points with those results.')
+
+    filter.vm.$emit('update:modelValue', null)
+    await flushPromises()
+    expect(asked.at(-1)?.has('status')).toBe(false)
+    expect(cells()).toHaveLength(10)
   })
 
   it('downloads every point as CSV with the token in the header, in the units on screen', async () => {

@@ -2,7 +2,7 @@ import { downloadFile, type DownloadedFile } from './download'
 import { readEventStream } from './event-stream'
 import { request } from './http'
 import type { ServerSentEvent } from './sse-parser'
-import type { ListResult, Surface, SurfaceMetric, Sweep, SweepAxisRequest, SweepDetail, SweepEstimate, SweepLevel, SweepPointPage, PointSort, UnitSystem } from './types'
+import type { ListResult, Surface, SurfaceMetric, Sweep, SweepAxisRequest, SweepDetail, SweepEstimate, SweepLevel, SweepPointPage, PointSort, PointStatus, UnitSystem } from './types'
 
 const sweepPath = (id: string) => `/api/sweeps/${encodeURIComponent(id)}`
 
@@ -19,6 +19,8 @@ export interface PointsQuery {
   limit: number
   sort: PointSort
   order: 'asc' | 'desc'
+  /** Only points with one of these results; none or empty: every point. */
+  status?: readonly PointStatus[]
 }
 
 export const sweepsApi = {
@@ -45,7 +47,8 @@ export const sweepsApi = {
   },
   /** One page of the sweep's stored points. */
   points(id: string, query: PointsQuery, signal?: AbortSignal): Promise<SweepPointPage> {
-    return request(`${sweepPath(id)}/points`, { query: { ...query }, signal })
+    const { status, ...rest } = query
+    return request(`${sweepPath(id)}/points`, { query: { ...rest, status: status?.length ? status.join(',') : undefined }, signal })
   },
   /** Every point as CSV in the given units. */
   pointsCsv(id: string, units: UnitSystem): Promise<DownloadedFile> {
