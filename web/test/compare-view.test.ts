@@ -85,8 +85,8 @@ describe('CompareView', { timeout: 60_000 }, () => {
     expect(cell(wrapper, 'compare-crack-0')).toBe('3.9 psi')
     // Twice the seat force on the same areas: twice the crack boost (3.87 psi shown as 3.9).
     expect(cell(wrapper, 'compare-crack-1')).toBe('7.7 psi')
-    await new Promise((resolve) => setTimeout(resolve, 0))
     await flushPromises()
+    await vi.waitFor(() => expect((wrapper.find('[data-testid="compare-ratio-plot"]').element as { plotted?: unknown }).plotted).toBeDefined())
     const plotted = (wrapper.find('[data-testid="compare-ratio-plot"]').element as HTMLElement & { plotted?: { data: { name: string; x: number[] }[] } }).plotted
     expect(plotted?.data.map((trace) => trace.name)).toEqual(['Street car', 'Track car'])
     expect(plotted?.data[0]?.x[0]).toBe(1)
@@ -100,8 +100,7 @@ describe('CompareView', { timeout: 60_000 }, () => {
     store.secondSweepId = 's2'
     for (let i = 0; i < 20 && !store.difference; i++) await new Promise((resolve) => setTimeout(resolve, 10))
     await flushPromises()
-    await new Promise((resolve) => setTimeout(resolve, 0))
-    await flushPromises()
+    await vi.waitFor(() => expect((wrapper.find('[data-testid="difference-plot"]').element as { plotted?: unknown }).plotted).toBeDefined())
     const plotted = (wrapper.find('[data-testid="difference-plot"]').element as HTMLElement & { plotted?: { data: { z: (number | null)[][] }[] } }).plotted
     const z = plotted?.data[0]?.z ?? []
     // 6 895 Pa is 1 psi; a point either sweep lacks stays a hole.

@@ -41,10 +41,10 @@ describe('RegisterView', () => {
     const { wrapper, router } = await mountApp(SignInView, ROUTES, '/sign-in')
     expect(wrapper.text()).toContain('New here?')
     await wrapper.find('[data-testid="to-register"]').trigger('click')
-    // A dialog on the page (Vuetify's back-button guard) lets a navigation finish only after a timer.
-    await new Promise((resolve) => setTimeout(resolve, 0))
+    // A dialog on the page (Vuetify's back-button guard) lets a navigation finish only after a timer,
+    // which a loaded machine may run late: wait for the route rather than for one tick.
     await flushPromises()
-    expect(router.currentRoute.value.path).toBe('/register')
+    await vi.waitFor(() => expect(router.currentRoute.value.path).toBe('/register'))
   })
 
   it('says what is missing beside each empty field and sends nothing', async () => {
@@ -110,8 +110,8 @@ describe('RegisterView', () => {
     await metric?.setValue(true)
     await wrapper.find('form').trigger('submit')
     // A dialog on the page (Vuetify's back-button guard) lets a navigation finish only after a timer.
-    await new Promise((resolve) => setTimeout(resolve, 0))
     await flushPromises()
+    await vi.waitFor(() => expect(localStorage.getItem('crackpoint.token')).toBe('new.token'))
 
     expect((requests[0]?.body as { unitSystem: string }).unitSystem).toBe('metric')
     expect(localStorage.getItem('crackpoint.token')).toBe('new.token')

@@ -64,12 +64,12 @@ describe('SignInView', () => {
     await wrapper.find('input[type="email"]').setValue('engineer@harrowlane.example')
     await wrapper.find('input[type="password"]').setValue('crackpoint-demo')
     await wrapper.find('form').trigger('submit')
-    // A dialog on the page (Vuetify's back-button guard) lets a navigation finish only after a timer.
-    await new Promise((resolve) => setTimeout(resolve, 0))
+    // A dialog on the page (Vuetify's back-button guard) lets a navigation finish only after a timer,
+    // which a loaded machine may run late: wait for the route rather than for one tick.
     await flushPromises()
+    await vi.waitFor(() => expect(router.currentRoute.value.fullPath).toBe('/scenarios/abc'))
 
     expect(localStorage.getItem('crackpoint.token')).toBe('signed.token.value')
-    expect(router.currentRoute.value.fullPath).toBe('/scenarios/abc')
     expect(wrapper.find('[data-testid="sign-in-error"]').exists()).toBe(false)
   })
 })
