@@ -62,9 +62,21 @@ describe('loadConfig', () => {
     expect(() => loadConfig({ NODE_ENV: 'production' })).toThrow(/JWT_SECRET: must be set to a secret of your own/);
   });
 
-  it('accepts a real secret in production', () => {
+  it('accepts real secrets in production', () => {
     const secret = 'a-production-secret-that-is-long-enough-1234';
-    expect(loadConfig({ NODE_ENV: 'production', JWT_SECRET: secret }).jwtSecret).toBe(secret);
+    const config = loadConfig({
+      NODE_ENV: 'production',
+      JWT_SECRET: secret,
+      STRIPE_SECRET_KEY: 'sk_test_a-key-of-the-deployments-own-account',
+      STRIPE_WEBHOOK_SECRET: 'whsec_the-deployments-own-endpoint-secret',
+    });
+    expect(config.jwtSecret).toBe(secret);
+  });
+
+  it("refuses the local payment stand-in's keys in production, naming both", () => {
+    expect(() => loadConfig({ NODE_ENV: 'production', JWT_SECRET: 'a-production-secret-that-is-long-enough-1234' })).toThrow(
+      /STRIPE_SECRET_KEY: must be[\s\S]*STRIPE_WEBHOOK_SECRET: must be/,
+    );
   });
 
   it('names every bad variable at once', () => {
