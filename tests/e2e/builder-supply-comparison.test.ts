@@ -49,12 +49,14 @@ describe('builder: CO₂ bottle against compressor and tank', () => {
     await page.getByRole('option', { name: 'Street car, bottle on the top port' }).click()
     await page.getByRole('option', { name: 'Track car, stiffer spring' }).click()
     await page.keyboard.press('Escape')
+    // The picker's list closes with a transition; until it has gone its options are still on the page.
+    await page.getByRole('listbox').waitFor({ state: 'detached' })
     await page.getByTestId('compare-table').waitFor()
     expect(await page.getByTestId('compare-crack-0').textContent()).toMatch(/\d+(\.\d)? psi/)
     await page.locator('[data-testid="compare-ratio-plot"] .main-svg').first().waitFor()
 
     await page.getByTestId('supply-scenario').click()
-    await page.getByRole('option', { name: 'Street car, bottle on the top port' }).click()
+    await page.getByRole('listbox').getByRole('option', { name: 'Street car, bottle on the top port' }).click()
     await expect.poll(async () => page.getByTestId('supply-setpoint').locator('input').inputValue()).toBe('10')
     await page.getByTestId('tank-cutInPa').locator('input').fill('110')
     await page.getByTestId('run-supply-comparison').click()
