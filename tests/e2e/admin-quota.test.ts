@@ -56,7 +56,8 @@ describe('admin quota', () => {
 
     const row = await knex('quotas').where({ user_id: builder.id }).first<{ monthly_compute_units: string; set_by: string }>()
     expect(Number(row?.monthly_compute_units)).toBe(1500)
-    expect(await page.getByTestId(`member-row-${builder.id}`).textContent()).toContain('1,500')
+    // The table is read again after the save; its row follows a moment later.
+    await expect.poll(() => page.getByTestId(`member-row-${builder.id}`).textContent()).toContain('1,500')
     await page.screenshot({ path: screenshotPath('admin-quota-saved.png'), fullPage: true })
 
     await page.reload()
