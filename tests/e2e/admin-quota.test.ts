@@ -38,6 +38,8 @@ describe('admin quota', () => {
     expect(pull.status).toBe(200)
 
     await page.goto(`${baseUrl}/sign-in`)
+    // The e-mail field takes the focus once mounted; filling before that would type into whichever field has it.
+    await page.locator('input[type="email"]:focus').waitFor()
     await page.getByLabel('E-mail').fill('admin@harrowlane.example')
     await page.getByLabel('Password', { exact: true }).fill(DEMO_PASSWORD)
     await page.getByRole('button', { name: 'Sign in' }).click()

@@ -56,6 +56,8 @@ describe('team invitation and password reset', () => {
 
     await page.getByRole('button', { name: 'Sign out' }).click()
     await page.waitForURL(/\/sign-in/)
+    // The e-mail field takes the focus once mounted; filling before that would type into whichever field has it.
+    await page.locator('input[type="email"]:focus').waitFor()
     await page.getByLabel('E-mail').fill(invitee)
     await page.getByTestId('forgot-password').click()
     await page.getByTestId('send-reset').click()
@@ -65,6 +67,8 @@ describe('team invitation and password reset', () => {
 
     const reset = await waitForMail(invitee, 2)
     await page.goto(`${baseUrl}${localPath(linkIn(reset, 'http'))}`)
+    // The new-password field takes the focus once mounted; filling the repeat before that would lose it.
+    await page.locator('[data-testid="reset-new"] input:focus').waitFor()
     await page.getByTestId('reset-new').locator('input').fill('a brand new secret')
     await page.getByTestId('reset-repeat').locator('input').fill('a brand new secret')
     expect(await page.getByTestId('reset-repeat').locator('input').inputValue()).toBe('a brand new secret')

@@ -36,6 +36,8 @@ describe('builder: CO₂ bottle against compressor and tank', () => {
   it('signs in, compares two scenarios and runs both supplies on one', async () => {
     const { page, baseUrl } = harness
     await page.goto(`${baseUrl}/sign-in`)
+    // The e-mail field takes the focus once mounted; filling before that would type into whichever field has it.
+    await page.locator('input[type="email"]:focus').waitFor()
     await page.getByLabel('E-mail').fill('builder@harrowlane.example')
     await page.getByLabel('Password', { exact: true }).fill(DEMO_PASSWORD)
     await page.getByRole('button', { name: 'Sign in' }).click()

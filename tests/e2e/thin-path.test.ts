@@ -48,6 +48,8 @@ describe('thin path', () => {
 
     await page.goto(`${baseUrl}/`)
     await page.waitForURL(/\/sign-in/)
+    // The e-mail field takes the focus once mounted; filling before that would type into whichever field has it.
+    await page.locator('input[type="email"]:focus').waitFor()
     await page.getByLabel('E-mail').fill(EMAIL)
     await page.getByLabel('Password', { exact: true }).fill('not-the-password')
     await page.getByRole('button', { name: 'Sign in' }).click()
