@@ -1,9 +1,6 @@
-import { readFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
-import { dirname, join } from 'node:path';
-import { pathToFileURL } from 'node:url';
-import { Worker } from 'node:worker_threads';
+import type { Worker } from 'node:worker_threads';
 import type { MeasuredBoost, PullFitOptions, PullFitReport, Scenario } from '@crackpoint/sim-core';
+import { startTsThread } from '../threads/ts-thread.ts';
 import type { FitReplyMessage, FitRequestMessage } from './fit-thread.ts';
 
 export class FitTimeoutError extends Error {
@@ -33,12 +30,6 @@ export interface FitRunnerOptions {
   timeLimitMs: number;
 }
 
-function tsxEsmApiUrl(): string {
-  const manifestPath = createRequire(import.meta.url).resolve('tsx/package.json');
-  const manifest = JSON.parse(readFileSync(manifestPath, 'utf8')) as { exports: { './esm/api': { import: { default: string } } } };
-  return pathToFileURL(join(dirname(manifestPath), manifest.exports['./esm/api'].import.default)).href;
-}
-
 /**
  * Runs datalog fits (sim-core's fitPullToLog, a hundred or more pulls) in worker threads, as PullRunner
  * runs single pulls: the API's event loop never waits on a fit, and a fit past its time limit is stopped by
@@ -51,15 +42,12 @@ export class FitRunner implements FitRunnerLike {
   private live = 0;
   private nextId = 1;
   private closed = false;
-  private boot: string | undefined;
 
   constructor(private readonly options: FitRunnerOptions) {}
 
   private spawn(): Worker {
     this.live += 1;
-    // Node will not start a thread from a .ts file itself; a short script registers tsx first.
-    this.boot ??= `import(${JSON.stringify(tsxEsmApiUrl())}).then((api) => { api.register(); return import(${JSON.stringify(new URL('./fit-thread.ts', import.meta.url).href)}); });`;
-    return new Worker(this.boot, { eval: true });
+    return startTsThread(new URL('./fit-thread.ts', import.meta.url));
   }
 
   private hand(worker: Worker | undefined): void {

@@ -1,9 +1,6 @@
-import { readFileSync } from 'node:fs';
-import { createRequire } from 'node:module';
-import { dirname, join } from 'node:path';
-import { pathToFileURL } from 'node:url';
-import { Worker } from 'node:worker_threads';
+import type { Worker } from 'node:worker_threads';
 import type { PullResult, Scenario } from '@crackpoint/sim-core';
+import { startTsThread } from '../threads/ts-thread.ts';
 import type { PullReplyMessage, PullRequestMessage } from './pull-thread.ts';
 
 export class PullTimeoutError extends Error {
@@ -33,19 +30,6 @@ export interface PullRunnerLike {
   close(): Promise<void>;
 }
 
-let tsxApi: string | undefined;
-
-/** tsx's ESM register API, found through its package's export map as `import` would resolve it. */
-function tsxEsmApiUrl(): string {
-  if (tsxApi) return tsxApi;
-  const manifestPath = createRequire(import.meta.url).resolve('tsx/package.json');
-  const manifest = JSON.parse(readFileSync(manifestPath, 'utf8')) as {
-    exports: { './esm/api': { import: { default: string } } };
-  };
-  tsxApi = pathToFileURL(join(dirname(manifestPath), manifest.exports['./esm/api'].import.default)).href;
-  return tsxApi;
-}
-
 interface Waiter {
   resolve: (worker: Worker) => void;
   reject: (error: Error) => void;
@@ -68,11 +52,7 @@ export class PullRunner implements PullRunnerLike {
 
   private spawn(): Worker {
     this.live += 1;
-    // Node will not start a thread from a .ts file itself; a short script registers tsx first.
-    const tsx = tsxEsmApiUrl();
-    const thread = new URL('./pull-thread.ts', import.meta.url).href;
-    const boot = `import(${JSON.stringify(tsx)}).then((api) => { api.register(); return import(${JSON.stringify(thread)}); });`;
-    return new Worker(boot, { eval: true });
+    return startTsThread(new URL('./pull-thread.ts', import.meta.url));
   }
 
   private acquire(deadline: number): Promise<Worker> {
