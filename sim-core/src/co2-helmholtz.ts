@@ -132,50 +132,98 @@ export interface Co2Residual {
 }
 
 /**
+ * The factors of each term that depend on τ alone (n·τ^t, and the Gaussian and non-analytic τ-exponentials), kept
+ * for the last τ asked. A pull asks at one bottle temperature thousands of times and a saturation solve dozens, so
+ * this spares most of the powers and exponentials; it changes no result, only the time.
+ */
+let factorsTau = Number.NaN
+const powerTau = new Float64Array(POWER_TERMS.length)
+const gaussianTau = new Float64Array(GAUSSIAN_TERMS.length)
+const nonAnalyticTau = new Float64Array(NON_ANALYTIC_TERMS.length)
+
+function setTau(tau: number): void {
+  if (tau === factorsTau) return
+  POWER_TERMS.forEach(({ n, t }, i) => {
+    powerTau[i] = t === 0 ? n : n * tau ** t
+  })
+  GAUSSIAN_TERMS.forEach(({ n, t, beta, gamma }, i) => {
+    gaussianTau[i] = n * tau ** t * Math.exp(-beta * (tau - gamma) ** 2)
+  })
+  NON_ANALYTIC_TERMS.forEach(({ D }, i) => {
+    nonAnalyticTau[i] = Math.exp(-D * (tau - 1) ** 2)
+  })
+  factorsTau = tau
+}
+
+/** δ¹…δ¹⁰ and exp(−δ¹)…exp(−δ⁶): the integer powers the terms use, by multiplication. */
+const deltaPow = new Float64Array(11)
+const expDeltaPow = new Float64Array(7)
+
+/**
  * φʳ(δ, τ) and its first two δ-derivatives. The non-analytic terms are written in u = (δ − 1)² so that none of
  * them divides by δ − 1: at the critical density every power of u left has a positive exponent, and at the
  * critical point itself (Δ = 0) each term and its derivatives vanish, which is their limit there.
  */
 export function co2Residual(delta: number, tau: number): Co2Residual {
+  setTau(tau)
+  deltaPow[0] = 1
+  for (let k = 1; k < deltaPow.length; k++) deltaPow[k] = deltaPow[k - 1]! * delta
+  for (let k = 1; k < expDeltaPow.length; k++) expDeltaPow[k] = Math.exp(-deltaPow[k]!)
+  const delta2 = delta * delta
   let phi = 0
   let phiD = 0
   let phiDD = 0
-  const lnDelta = Math.log(delta)
-  const lnTau = Math.log(tau)
-  for (const { n, d, t, c } of POWER_TERMS) {
-    const deltaD = Math.exp(d * lnDelta)
-    const tauT = t === 0 ? 1 : Math.exp(t * lnTau)
-    let term: number
-    let k: number
-    let cDc = 0
-    if (c === 0) {
-      term = n * deltaD * tauT
-      k = d
-    } else {
-      const deltaC = Math.exp(c * lnDelta)
-      cDc = c * deltaC
-      term = n * deltaD * tauT * Math.exp(-deltaC)
-      k = d - cDc
-    }
+  for (let i = 0; i < POWER_TERMS.length; i++) {
+    const { d, c } = POWER_TERMS[i]!
+    // n·δ^d·τ^t·exp(−δ^c): ∂/∂δ brings (d − c·δ^c)/δ; the polynomial terms have c = 0 and no exponential.
+    const cDc = c === 0 ? 0 : c * deltaPow[c]!
+    const term = powerTau[i]! * deltaPow[d]! * (c === 0 ? 1 : expDeltaPow[c]!)
+    const k = d - cDc
     phi += term
     phiD += (term * k) / delta
-    phiDD += (term * (k * (k - 1) - c * cDc)) / (delta * delta)
+    phiDD += (term * (k * (k - 1) - c * cDc)) / delta2
   }
-  for (const { n, d, t, alpha, beta, gamma, epsilon } of GAUSSIAN_TERMS) {
+  // Neighbouring terms share parameters (α, ε; β, a, C): each exponential or power is taken once per value.
+  let gaussAlpha = Number.NaN
+  let gaussEpsilon = Number.NaN
+  let gaussExp = 0
+  for (let i = 0; i < GAUSSIAN_TERMS.length; i++) {
+    const { d, alpha, epsilon } = GAUSSIAN_TERMS[i]!
     const dd = delta - epsilon
-    const dt = tau - gamma
-    const term = n * Math.exp(d * lnDelta + t * lnTau - alpha * dd * dd - beta * dt * dt)
+    if (alpha !== gaussAlpha || epsilon !== gaussEpsilon) {
+      gaussAlpha = alpha
+      gaussEpsilon = epsilon
+      gaussExp = Math.exp(-alpha * dd * dd)
+    }
+    const term = gaussianTau[i]! * deltaPow[d]! * gaussExp
     const k = d / delta - 2 * alpha * dd
     phi += term
     phiD += term * k
-    phiDD += term * (k * k - d / (delta * delta) - 2 * alpha)
+    phiDD += term * (k * k - d / delta2 - 2 * alpha)
   }
   const s = delta - 1
   const u = s * s
   const oneMinusTau = 1 - tau
-  for (const { n, a, b, beta, A, B, C, D } of NON_ANALYTIC_TERMS) {
-    const uHalfBeta = u === 0 ? 0 : Math.pow(u, 1 / (2 * beta))
-    const uA = u === 0 ? 0 : Math.pow(u, a)
+  let betaKey = Number.NaN
+  let uHalfBeta = 0
+  let aKey = Number.NaN
+  let uA = 0
+  let cKey = Number.NaN
+  let expCu = 0
+  for (let i = 0; i < NON_ANALYTIC_TERMS.length; i++) {
+    const { n, a, b, beta, A, B, C } = NON_ANALYTIC_TERMS[i]!
+    if (beta !== betaKey) {
+      betaKey = beta
+      uHalfBeta = u === 0 ? 0 : Math.pow(u, 1 / (2 * beta))
+    }
+    if (a !== aKey) {
+      aKey = a
+      uA = u === 0 ? 0 : Math.pow(u, a)
+    }
+    if (C !== cKey) {
+      cKey = C
+      expCu = Math.exp(-C * u)
+    }
     const theta = oneMinusTau + A * uHalfBeta
     const Delta = theta * theta + B * uA
     if (Delta === 0) continue
@@ -191,7 +239,7 @@ export function co2Residual(delta: number, tau: number): Co2Residual {
     const Db = Math.pow(Delta, b)
     const DbD = (b * Db * dDelta) / Delta
     const DbDD = b * ((Db / Delta) * d2Delta + ((b - 1) * Db * dDelta * dDelta) / (Delta * Delta))
-    const psi = Math.exp(-C * u - D * oneMinusTau * oneMinusTau)
+    const psi = expCu * nonAnalyticTau[i]!
     const psiD = -2 * C * s * psi
     const psiDD = (4 * C * C * u - 2 * C) * psi
     phi += n * Db * delta * psi

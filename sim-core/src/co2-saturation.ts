@@ -77,7 +77,7 @@ function solve(tau: number, liquid0: number, vapour0: number): { liquid: number;
     if (!Number.isFinite(det) || det === 0) return null
     let stepL = (-f1 * d + f2 * b) / det
     let stepV = (-f2 * a + f1 * c) / det
-    // Halve a step that would cross the phases over or leave positive densities.
+    // Halve a step that would cross the phases over or take a density below zero.
     for (let h = 0; h < 40 && !(dl + stepL > dv + stepV && dv + stepV > 0); h++) {
       stepL /= 2
       stepV /= 2
@@ -93,8 +93,9 @@ function solve(tau: number, liquid0: number, vapour0: number): { liquid: number;
 /**
  * Saturation pressure and saturated densities at a temperature from the equation of state: the two densities at
  * which the liquid and the vapour have the same pressure and the same Gibbs energy (Maxwell's criterion).
- * Agrees with the ancillary equations (co2SaturationPressurePa etc.) within about 0.01–0.05 %. At the critical
- * temperature both densities are ρ_c and the pressure is the equation's at (ρ_c, T_c).
+ * Agrees with the ancillary equations (co2SaturationPressurePa etc.) within 0.005 % in pressure, and with the
+ * paper's saturation table (its Table 34) to the printed figures. At the critical temperature both densities are
+ * ρ_c and the pressure is the equation's at (ρ_c, T_c).
  *
  * Throws a RangeError outside the triple point to the critical point, naming the temperature.
  */
@@ -126,8 +127,8 @@ function solveAt(temperatureK: number): Co2Saturation | null {
 }
 
 /**
- * Within this much of T_c, Newton's method works at the rounding of double precision (the loop of the isotherm
- * is a few parts in 10⁸ deep), and a millionth of a kelvin from T_c it no longer settles.
+ * Within this much of T_c, Newton's method works at the rounding of double precision (the loop of the isotherm is
+ * less than a millionth of the pressure deep), and a few tenths of a microkelvin from T_c it no longer settles.
  */
 const NEAR_CRITICAL_BAND_K = 1e-5
 let bandEdge: Co2Saturation | null = null
