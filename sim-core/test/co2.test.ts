@@ -1,18 +1,20 @@
 import { describe, expect, it } from 'vitest'
 import {
+  CO2_BURST_DISC_WARNING_FRACTION,
   CO2_CRITICAL,
   CO2_GAS_CONSTANT,
-  CO2_PENG_ROBINSON,
+  CO2_TYPICAL_BURST_DISC_GAUGE_PA,
+  co2BottlePressureFunction,
   co2BottlePressurePa,
   co2BottleState,
+  co2EosPressurePa,
+  co2EosSaturation,
   co2GasDensityKgM3,
   co2GasMassPerLitreKg,
-  co2PengRobinsonPressurePa,
   co2SaturatedLiquidDensityKgM3,
   co2SaturatedVapourDensityKgM3,
   co2SaturationPressurePa,
 } from '../src/co2.ts'
-import { PENG_ROBINSON } from '../src/peng-robinson.ts'
 import { expectClose } from './expect-close.ts'
 
 const celsius = (c: number) => c + 273.15
@@ -70,43 +72,6 @@ describe('CO₂ saturated densities (Span & Wagner ancillary equations)', () => 
   })
 })
 
-describe('Peng–Robinson for CO₂', () => {
-  it('solves its critical conditions to the textbook constants Ω_a 0.45724, Ω_b 0.07780, Z_c 0.3074 (Peng & Robinson 1976)', () => {
-    expectClose(PENG_ROBINSON.omegaA, 0.45724, 5e-6, 'Ω_a')
-    expectClose(PENG_ROBINSON.omegaB, 0.0778, 5e-6, 'Ω_b')
-    expectClose(PENG_ROBINSON.zc, 0.3074, 5e-5, 'Z_c')
-  })
-
-  const tc = CO2_PENG_ROBINSON.criticalTemperatureK
-  const rhoC = (CO2_PENG_ROBINSON.criticalPressurePa * CO2_PENG_ROBINSON.molarMassKgPerMol) /
-    (PENG_ROBINSON.zc * 8.314462618 * tc)
-
-  it('passes through the critical point (304.13 K, 7.3773 MPa) with a flat critical isotherm', () => {
-    expectClose(co2PengRobinsonPressurePa(rhoC, tc), 7.3773e6, 1e-3, 'p(T_c, ρ_c of PR), Pa')
-    const h = 1
-    const slope = (co2PengRobinsonPressurePa(rhoC + h, tc) - co2PengRobinsonPressurePa(rhoC - h, tc)) / (2 * h)
-    // A flat isotherm: far below the ≈ 6000 Pa per kg/m³ of the 313 K isotherm at the same density.
-    const away = (co2PengRobinsonPressurePa(rhoC + h, 313.15) - co2PengRobinsonPressurePa(rhoC - h, 313.15)) / (2 * h)
-    expect(Math.abs(slope)).toBeLessThan(1e-3 * away)
-  })
-
-  it('meets the saturation curve at the critical point', () => {
-    expectClose(co2PengRobinsonPressurePa(rhoC, tc), co2SaturationPressurePa(CO2_CRITICAL.temperatureK), 1e-3, 'Pa')
-  })
-
-  it('lies within 0.5 % of the saturation pressure on the saturated vapour between 0 and 30 °C', () => {
-    for (const c of [0, 10, 20, 30]) {
-      const t = celsius(c)
-      const pr = co2PengRobinsonPressurePa(co2SaturatedVapourDensityKgM3(t), t)
-      expectClose(pr / co2SaturationPressurePa(t), 1, 0.005, `PR/p_sat on ρ″ at ${c} °C`)
-    }
-  })
-
-  it('tends to the ideal gas at low density', () => {
-    const rho = 0.01
-    expectClose(co2PengRobinsonPressurePa(rho, 300) / (rho * CO2_GAS_CONSTANT * 300), 1, 1e-4, 'Z at 0.01 kg/m³')
-  })
-})
 
 describe('co2BottleState', () => {
   it('holds a part-full bottle at the saturation pressure and splits liquid from vapour by volume', () => {
@@ -116,23 +81,32 @@ describe('co2BottleState', () => {
     expect(s.warning).toBeUndefined()
     expectClose(s.pressurePa / MPA, 5.7291, 0.0005, 'pressure, MPa (NIST WebBook at 20 °C)')
     expectClose(s.liquidMassKg + s.vapourMassKg, 2.27, 1e-12, 'mass balance, kg')
-    const volume = s.liquidMassKg / co2SaturatedLiquidDensityKgM3(celsius(20)) +
-      s.vapourMassKg / co2SaturatedVapourDensityKgM3(celsius(20))
+    const saturated = co2EosSaturation(celsius(20))
+    const volume = s.liquidMassKg / saturated.liquidDensityKgM3 + s.vapourMassKg / saturated.vapourDensityKgM3
     expectClose(volume, 0.0046, 1e-12, 'volume balance, m³')
     expect(s.liquidMassKg).toBeGreaterThan(s.vapourMassKg)
   })
 
   it('keeps the saturation pressure as liquid boils off, then falls as vapour once the liquid is gone', () => {
     const t = celsius(20)
-    const rhoV = co2SaturatedVapourDensityKgM3(t)
-    const last = co2BottleState({ volumeM3: 0.0046, massKg: 0.0046 * rhoV * 1.01, temperatureK: t })
+    const saturated = co2EosSaturation(t)
+    const last = co2BottleState({ volumeM3: 0.0046, massKg: 0.0046 * saturated.vapourDensityKgM3 * 1.01, temperatureK: t })
     expect(last.phase).toBe('two-phase')
-    expectClose(last.pressurePa, co2SaturationPressurePa(t), 1e-6, 'pressure with a little liquid, Pa')
-    const empty = co2BottleState({ volumeM3: 0.0046, massKg: 0.0046 * rhoV * 0.5, temperatureK: t })
+    expect(last.pressurePa).toBe(saturated.pressurePa)
+    const empty = co2BottleState({ volumeM3: 0.0046, massKg: 0.0046 * saturated.vapourDensityKgM3 * 0.5, temperatureK: t })
     expect(empty.phase).toBe('gas')
     expect(empty.liquidMassKg).toBe(0)
-    expect(empty.pressurePa).toBeLessThan(co2SaturationPressurePa(t))
-    expect(empty.pressurePa).toBeGreaterThan(0.5 * co2SaturationPressurePa(t))
+    expect(empty.pressurePa).toBeLessThan(saturated.pressurePa)
+    expect(empty.pressurePa).toBeGreaterThan(0.5 * saturated.pressurePa)
+  })
+
+  it('takes the saturation pressure from the equation of state, within 0.005 % of the ancillary equation', () => {
+    for (const c of [-40, -20, 0, 10, 20, 25, 30]) {
+      const s = co2BottleState({ volumeM3: 0.001, massKg: 0.5, temperatureK: celsius(c) })
+      expect(s.phase).toBe('two-phase')
+      expect(s.pressurePa).toBe(co2EosSaturation(celsius(c)).pressurePa)
+      expectClose(s.pressurePa / co2SaturationPressurePa(celsius(c)), 1, 5e-5, `p_sat EOS/ancillary at ${c} °C`)
+    }
   })
 
   it('goes supercritical above 304.13 K with a warning that pressure rises fast with temperature', () => {
@@ -140,10 +114,14 @@ describe('co2BottleState', () => {
     expect(s.phase).toBe('supercritical')
     expect(s.liquidMassKg).toBe(0)
     expect(s.pressurePa).toBeGreaterThan(CO2_CRITICAL.pressurePa)
+    expect(s.pressurePa).toBe(co2EosPressurePa(2.27 / 0.0046, celsius(45)))
     expect(s.warning).toMatch(/rises fast with temperature/)
     expect(s.warning).toMatch(/burst disc/)
     const hotter = co2BottleState({ volumeM3: 0.0046, massKg: 2.27, temperatureK: celsius(55) })
     expect(hotter.pressurePa - s.pressurePa).toBeGreaterThan(1.5 * MPA)
+    // The rise the warning quotes is the equation's over the next 10 K.
+    const rise = (co2EosPressurePa(2.27 / 0.0046, celsius(55)) - s.pressurePa) / MPA
+    expect(s.warning).toContain(`about ${rise.toFixed(1)} MPa per further 10 K`)
   })
 
   it('is continuous across the critical temperature at the critical fill density', () => {
@@ -152,19 +130,23 @@ describe('co2BottleState', () => {
     const above = co2BottleState({ ...fill, temperatureK: 304.14 })
     expect(below.phase).toBe('two-phase')
     expect(above.phase).toBe('supercritical')
-    expectClose(above.pressurePa / below.pressurePa, 1, 0.003, 'pressure ratio across T_c')
+    // 0.02 K on the saturation curve's 0.17 MPa/K: about 3.4 kPa, 0.05 %.
+    expectClose(above.pressurePa / below.pressurePa, 1, 6e-4, 'pressure ratio across T_c')
   })
 
-  it('flags an overfilled bottle that the liquid fills completely', () => {
-    // 0.74 kg/L at 25 °C is denser than the saturated liquid there (710 kg/m³).
+  it('flags an overfilled bottle that the liquid fills completely, with its pressure rise per kelvin', () => {
+    // 0.74 kg/L at 25 °C is denser than the saturated liquid there (710.5 kg/m³).
     const s = co2BottleState({ volumeM3: 0.001, massKg: 0.74, temperatureK: celsius(25) })
     expect(s.phase).toBe('liquid-full')
     expect(s.vapourMassKg).toBe(0)
-    expect(s.pressurePa).toBeGreaterThanOrEqual(co2SaturationPressurePa(celsius(25)))
+    expect(s.pressurePa).toBeGreaterThan(co2EosSaturation(celsius(25)).pressurePa)
     expect(s.warning).toMatch(/full of liquid/)
+    const slope = (co2EosPressurePa(740, celsius(25) + 0.5) - co2EosPressurePa(740, celsius(25) - 0.5)) / MPA
+    expect(s.warning).toContain(`about ${slope.toFixed(2)} MPa per K at this fill`)
+    expect(s.warning).toMatch(/above the usual filling limit of 0\.68 kg\/L/)
   })
 
-  it('gives the same pressure through the pressure-only path in every phase', () => {
+  it('gives the same pressure through the pressure-only paths in every phase', () => {
     const cases = [
       { volumeM3: 0.0046, massKg: 2.27, temperatureK: celsius(20) },
       { volumeM3: 0.0046, massKg: 0.012, temperatureK: celsius(20) },
@@ -172,19 +154,96 @@ describe('co2BottleState', () => {
       { volumeM3: 0.0046, massKg: 2.27, temperatureK: celsius(45) },
     ]
     expect(cases.map((c) => co2BottleState(c).phase)).toEqual(['two-phase', 'gas', 'liquid-full', 'supercritical'])
-    for (const c of cases) expect(co2BottlePressurePa(c)).toBe(co2BottleState(c).pressurePa)
+    for (const c of cases) {
+      expect(co2BottlePressurePa(c)).toBe(co2BottleState(c).pressurePa)
+      expect(co2BottlePressureFunction(c.volumeM3, c.temperatureK)(c.massKg)).toBe(co2BottleState(c).pressurePa)
+    }
+  })
+
+  it('puts a fill at exactly a saturated density in the same phase with the same pressure on every path', () => {
+    const t = celsius(15)
+    const s = co2EosSaturation(t)
+    for (const rho of [s.vapourDensityKgM3, s.liquidDensityKgM3]) {
+      const input = { volumeM3: 1, massKg: rho, temperatureK: t }
+      const state = co2BottleState(input)
+      expect(state.phase).not.toBe('two-phase')
+      expect(co2BottlePressurePa(input)).toBe(state.pressurePa)
+      expect(co2BottlePressureFunction(1, t)(rho)).toBe(state.pressurePa)
+      expectClose(state.pressurePa / s.pressurePa, 1, 1e-9, 'p at a saturated density / p_sat')
+    }
   })
 
   it('refuses a bottle below the triple point and non-positive inputs, naming them', () => {
     expect(() => co2BottleState({ volumeM3: 0.0046, massKg: 2.27, temperatureK: 200 })).toThrow(/200 K/)
     expect(() => co2BottleState({ volumeM3: 0, massKg: 2.27, temperatureK: 300 })).toThrow(/volumeM3/)
     expect(() => co2BottleState({ volumeM3: 0.0046, massKg: -1, temperatureK: 300 })).toThrow(/massKg/)
+    expect(() => co2BottleState({ volumeM3: 0.0046, massKg: 2.27, temperatureK: Number.NaN })).toThrow(/temperatureK/)
     // 1.5 kg/L is denser than liquid CO₂ at its triple point (about 1178 kg/m³, Span & Wagner eq. 3.14).
     expect(() => co2BottleState({ volumeM3: 0.001, massKg: 1.5, temperatureK: 300 })).toThrow(/cannot fit/)
+    expect(() => co2BottlePressureFunction(0.001, 300)(1.5)).toThrow(/cannot fit/)
+    expect(() => co2BottlePressureFunction(0.001, 300)(0)).toThrow(/massKg/)
+    expect(() => co2BottlePressureFunction(-1, 300)).toThrow(/volumeM3/)
+    expect(() => co2BottlePressureFunction(0.001, 150)).toThrow(/150 K/)
   })
 })
 
-describe('CO₂ gas in a chamber (Peng–Robinson)', () => {
+describe('co2BottleState warnings', () => {
+  const normal = (temperatureK: number) => co2BottleState({ volumeM3: 0.001, massKg: 0.68, temperatureK })
+
+  it('gives none for a normally filled bottle (0.68 kg/L) at 20 °C, nor at exactly 0.68 kg/L', () => {
+    expect(normal(celsius(20)).warning).toBeUndefined()
+    expect(normal(celsius(20)).phase).toBe('two-phase')
+    // 6.8 L holding 4.624 kg: 0.68 kg/L in numbers that do not divide exactly in binary.
+    expect(co2BottleState({ volumeM3: 0.0068, massKg: 4.624, temperatureK: celsius(20) }).warning).toBeUndefined()
+  })
+
+  it('flags a fill above 0.68 kg/L as common practice, and says when the liquid fills the bottle', () => {
+    const s = co2BottleState({ volumeM3: 0.001, massKg: 0.7, temperatureK: celsius(20) })
+    expect(s.phase).toBe('two-phase')
+    expect(s.warning).toMatch(/common practice; many codes cap CO₂ filling at about 0\.68 kg\/L/)
+    // ρ′ falls through 700 kg/m³ between 298 K (712.77) and 300 K (679.24) (Span & Wagner 1996, Table 34).
+    const from = Number(/full of liquid from about (-?[\d.]+) °C/.exec(s.warning ?? '')?.[1])
+    expect(from).toBeGreaterThan(298 - 273.15)
+    expect(from).toBeLessThan(300 - 273.15)
+    expect(s.warning).toMatch(/bottle maker's rating/)
+    expect(s.warning).toMatch(/local codes/)
+  })
+
+  it('flags a normally filled bottle once the liquid fills it, near 27 °C, with the rise per kelvin', () => {
+    expect(normal(celsius(26)).phase).toBe('two-phase')
+    expect(normal(celsius(26)).warning).toBeUndefined()
+    const full = normal(celsius(28))
+    expect(full.phase).toBe('liquid-full')
+    expect(full.warning).toMatch(/full of liquid/)
+    expect(full.warning).toMatch(/MPa per K at this fill/)
+    expect(full.warning).not.toMatch(/filling limit/)
+  })
+
+  it('warns near a typical burst-disc rating (3000 psi, common practice) and above it', () => {
+    expectClose(CO2_TYPICAL_BURST_DISC_GAUGE_PA / MPA, 20.684, 0.001, 'typical burst-disc rating, MPa gauge (3000 psi)')
+    expect(normal(320).warning).not.toMatch(/burst-disc rating/)
+    const near = normal(340)
+    const gauge = near.pressurePa - 101_325
+    expect(gauge).toBeGreaterThan(CO2_BURST_DISC_WARNING_FRACTION * CO2_TYPICAL_BURST_DISC_GAUGE_PA)
+    expect(gauge).toBeLessThan(CO2_TYPICAL_BURST_DISC_GAUGE_PA)
+    expect(near.warning).toMatch(/% of a typical burst-disc rating of 20\.7 MPa \(3000 psi\)/)
+    expect(near.warning).toMatch(/common practice, no source/)
+    expect(near.warning).toMatch(/bottle maker's rating/)
+    const over = normal(350)
+    expect(over.pressurePa - 101_325).toBeGreaterThan(CO2_TYPICAL_BURST_DISC_GAUGE_PA)
+    expect(over.warning).toMatch(/is above a typical burst-disc rating/)
+  })
+
+  it('warns about a cold overfilled bottle full of compressed liquid', () => {
+    // 1.05 kg/L at 260 K: a compressed liquid, denser than the saturated liquid there (998.9 kg/m³).
+    const s = co2BottleState({ volumeM3: 0.001, massKg: 1.05, temperatureK: 260 })
+    expect(s.phase).toBe('liquid-full')
+    expect(s.warning).toMatch(/full of liquid/)
+    expect(s.warning).toMatch(/filling limit/)
+  })
+})
+
+describe('CO₂ gas in a chamber (equation of state)', () => {
   it('gives the standard density 1.977 kg/m³ at 0 °C and 101.325 kPa (Messer, "Properties of Carbon Dioxide")', () => {
     expectClose(co2GasDensityKgM3(101_325, 273.15), 1.977, 0.003, 'kg/m³')
   })
@@ -197,17 +256,40 @@ describe('CO₂ gas in a chamber (Peng–Robinson)', () => {
     expectClose(z, 0.88, 0.02, 'compressibility factor')
   })
 
+  // Span & Wagner 1996, Table 35, as transcribed in the test suite of equinor/open_petro_elastic.
+  const table35: [number, number, number][] = [
+    [240, 1, 24.857],
+    [280, 1, 20.199],
+    [300, 1, 18.579],
+    [320, 10, 448.28],
+    [340, 10, 258.62],
+    [280, 0.5, 9.7568],
+  ]
+  for (const [t, mpa, rho] of table35) {
+    it(`gives ${rho} kg/m³ at ${mpa} MPa and ${t} K (Span & Wagner 1996, Table 35)`, () => {
+      expectClose(co2GasDensityKgM3(mpa * MPA, t) / rho, 1, 5e-4, `ρ/ρ_table at ${t} K, ${mpa} MPa`)
+    })
+  }
+
   it('round-trips with the pressure equation', () => {
-    for (const [p, t] of [[500_000, 280], [3e6, 350], [1.2e6, 300]] as const) {
-      expectClose(co2PengRobinsonPressurePa(co2GasDensityKgM3(p, t), t), p, 1e-6 * p, `p at ${p} Pa, ${t} K`)
+    for (const [p, t] of [[500_000, 280], [3e6, 350], [1.2e6, 300], [7.3e6, 304.2], [20e6, 310], [4e6, 279.9]] as const) {
+      expectClose(co2EosPressurePa(co2GasDensityKgM3(p, t), t), p, 1e-9 * p, `p at ${p} Pa, ${t} K`)
     }
+  })
+
+  it('finds the vapour right up to saturation', () => {
+    const s = co2EosSaturation(celsius(20))
+    expectClose(co2GasDensityKgM3(s.pressurePa, celsius(20)) / s.vapourDensityKgM3, 1, 1e-9, 'ρ at p_sat / ρ″')
   })
 
   it('gives grams per litre of chamber', () => {
     expectClose(co2GasMassPerLitreKg(101_325, 273.15) * 1000, 1.977, 0.003, 'g per litre at STP')
   })
 
-  it('refuses a pressure at which CO₂ would be liquid', () => {
+  it('refuses a pressure at which CO₂ would be liquid, and bad input, naming it', () => {
     expect(() => co2GasDensityKgM3(6e6, celsius(20))).toThrow(/would be liquid/)
+    expect(() => co2GasDensityKgM3(0, 300)).toThrow(/pressurePa/)
+    expect(() => co2GasDensityKgM3(1e6, 200)).toThrow(/triple point/)
+    expect(() => co2GasDensityKgM3(1e9, 350)).toThrow(/800 MPa/)
   })
 })
