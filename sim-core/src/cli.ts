@@ -4,6 +4,7 @@ import { computeBalance } from './balance.ts'
 import type { FieldIssue } from './scenario.ts'
 import { parseCliArgs, USAGE, type CliOptions } from './cli/args.ts'
 import { renderBalance } from './cli/balance-report.ts'
+import { faultLine, refusalLines, refusalOf, SweepPointError } from './cli/failures.ts'
 import { readJsonFile, readScenario, readSweep, type SweepFile } from './cli/input.ts'
 import { renderPull } from './cli/pull-report.ts'
 import { renderSweep, runSweep } from './cli/sweep-report.ts'
@@ -11,7 +12,8 @@ import { runPull } from './pull/index.ts'
 
 /**
  * `npm run sim -- <balance|pull|sweep> <file> [--json] [--units us|metric]`: the model from the command line.
- * Exit codes: 0 done (a pull that stopped early says so in its report), 1 bad input (file or schema), 2 wrong usage.
+ * Exit codes: 0 done (a pull that stopped early says so in its report), 1 bad input (file, schema, or a scenario
+ * the model refuses), 2 wrong usage, 70 a fault in the tool. No exit prints a stack trace.
  */
 
 export interface CliIo {
@@ -94,14 +96,35 @@ export async function main(argv: readonly string[], io: CliIo): Promise<number> 
   }
   const { options } = args
   const path = resolve(io.cwd, options.file)
-  switch (options.command) {
-    case 'balance':
-      return balance(options, path, io)
-    case 'pull':
-      return pull(options, path, io)
-    case 'sweep':
-      return sweep(options, path, io)
+  try {
+    switch (options.command) {
+      case 'balance':
+        return await balance(options, path, io)
+      case 'pull':
+        return await pull(options, path, io)
+      case 'sweep':
+        return await sweep(options, path, io)
+    }
+  } catch (error) {
+    return reportFailure(io, options, error)
   }
+}
+
+/** A model refusal is bad input (exit 1, naming the field); anything else is a fault in the tool (exit 70). */
+function reportFailure(io: CliIo, options: CliOptions, error: unknown): number {
+  const atPoint = error instanceof SweepPointError ? error : null
+  const refusal = refusalOf(atPoint ? atPoint.cause : error)
+  if (refusal === null) {
+    const where = `sim ${options.command} ${options.file}${atPoint ? ` at point ${atPoint.index} (${atPoint.where})` : ''}`
+    io.stderr(`${faultLine(where, atPoint ? atPoint.cause : error)}\n`)
+    return 70
+  }
+  if (atPoint) {
+    io.stderr(`${options.file}: the model cannot run point ${atPoint.index} of this sweep (${atPoint.where}):\n${refusalLines(refusal, 'scenario.')}\n`)
+  } else {
+    io.stderr(`${options.file} is not a scenario the model can run:\n${refusalLines(refusal)}\n`)
+  }
+  return 1
 }
 
 const invokedDirectly = process.argv[1] !== undefined && import.meta.url === pathToFileURL(resolve(process.argv[1])).href
@@ -116,7 +139,8 @@ if (invokedDirectly) {
       process.exitCode = code
     },
     (error: unknown) => {
-      process.stderr.write(`sim failed: ${error instanceof Error ? (error.stack ?? error.message) : String(error)}\n`)
+      // main catches what the commands throw; this is the last guard, and it keeps to one line too.
+      process.stderr.write(`${faultLine('sim', error)}\n`)
       process.exitCode = 70
     },
   )

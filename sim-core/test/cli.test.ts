@@ -1,9 +1,9 @@
 import { spawnSync } from 'node:child_process'
-import { mkdtempSync, rmSync, writeFileSync } from 'node:fs'
+import { mkdtempSync, readFileSync, rmSync, writeFileSync } from 'node:fs'
 import { tmpdir } from 'node:os'
 import { dirname, join, resolve } from 'node:path'
 import { fileURLToPath } from 'node:url'
-import { afterAll, describe, expect, it } from 'vitest'
+import { afterAll, afterEach, describe, expect, it, vi } from 'vitest'
 import { main, type CliIo } from '../src/cli.ts'
 import { computeBalance, formatQuantity, parseScenario, type Scenario } from '../src/index.ts'
 import { runPull } from '../src/pull/index.ts'
@@ -263,5 +263,136 @@ describe('npm run sim from the repository root', () => {
     const r = npm('balance', writeJson('root-bad.json', { engine: { displacementM3: -1 } }))
     expect(r.status).toBe(1)
     expect(r.stderr).toContain('engine.displacementM3: must be greater than 0')
+  })
+})
+
+/** A line of a JavaScript stack trace ("    at fn (file:line:col)"). */
+const STACK_FRAME = /^\s+at /m
+
+describe('no command prints a stack trace', () => {
+  // A 78 mm diaphragm at 12.7 mm (0.5 in) of lift sweeps 60.7 cm³ (a real gate's size; common practice, no source).
+  // A top chamber of 50 cm³ cannot hold that stroke: the schema takes the numbers one by one, the pull refuses them
+  // as a whole, naming the field. (Should the schema learn to refuse it, the field is still named, with exit 1.)
+  const bigDiaphragm = async () => {
+    const s = await exampleScenario()
+    return { ...s, wastegate: { ...s.wastegate, actuatorDiameterM: 0.078, maxLiftM: 0.0127, topChamberVolumeM3: 50e-6 } }
+  }
+
+  it('pull: a scenario the model refuses exits 1 with the field and the problem, like a schema error', async () => {
+    const file = writeJson('big-diaphragm.json', await bigDiaphragm())
+    expect(parseScenario(JSON.parse(readFileSync(file, 'utf8'))).ok).toBe(true)
+    const r = await run('pull', file)
+    expect(r.code).toBe(1)
+    expect(r.stdout).toBe('')
+    expect(r.stderr).toMatch(/^ {2}wastegate\.topChamberVolumeM3: must /m)
+    expect(r.stderr).not.toMatch(STACK_FRAME)
+  })
+
+  it('balance: the same scenario runs at the static level, which has no chamber volumes', async () => {
+    const r = await run('balance', writeJson('big-diaphragm-balance.json', await bigDiaphragm()))
+    expect(r.code).toBe(0)
+    expect(r.stderr).toBe('')
+  })
+
+  it('sweep: names the point the model refuses and its axis values, exits 1, prints no table', async () => {
+    const s = await exampleScenario()
+    const file = writeJson('sweep-diaphragm.json', {
+      scenario: { ...s, wastegate: { ...s.wastegate, maxLiftM: 0.0127, topChamberVolumeM3: 50e-6 } },
+      level: 'dynamic',
+      axes: [{ path: 'wastegate.actuatorDiameterM', values: [0.0555, 0.078] }],
+    })
+    const r = await run('sweep', file)
+    expect(r.code).toBe(1)
+    expect(r.stdout).toBe('')
+    expect(r.stderr).toContain('the model cannot run point 1 of this sweep (wastegate.actuatorDiameterM = 0.078)')
+    expect(r.stderr).toMatch(/^ {2}scenario\.wastegate\.topChamberVolumeM3: must /m)
+    expect(r.stderr).not.toMatch(STACK_FRAME)
+    // The static level has nothing to refuse there.
+    const statics = await run('sweep', writeJson('sweep-diaphragm-static.json', { ...JSON.parse(readFileSync(file, 'utf8')), level: 'static' }))
+    expect(statics.code).toBe(0)
+  })
+
+  it('balance, pull and sweep: a file the schema refuses exits 1 without a stack', async () => {
+    const s = await exampleScenario()
+    const bad = writeJson('bad-all.json', { ...s, wastegate: { ...s.wastegate, maxLiftM: -1 } })
+    const badSweep = writeJson('bad-sweep.json', { scenario: { ...s, wastegate: { ...s.wastegate, maxLiftM: -1 } }, axes: [{ path: 'exhaust.ratio', values: [1.5] }] })
+    for (const [command, file] of [['balance', bad], ['pull', bad], ['sweep', badSweep]] as const) {
+      const r = await run(command, file)
+      expect(r.code, command).toBe(1)
+      expect(r.stderr, command).toMatch(/maxLiftM: must be greater than 0/)
+      expect(r.stderr, command).not.toMatch(STACK_FRAME)
+    }
+  })
+
+  it('through npm from the repository root, too', async () => {
+    const env = { ...process.env }
+    delete env.INIT_CWD
+    const file = writeJson('big-diaphragm-npm.json', await bigDiaphragm())
+    const r = spawnSync('npm', ['run', '-s', 'sim', '--', 'pull', file], { cwd: repoRoot, env, encoding: 'utf8', timeout: 60_000 })
+    expect(r.status, r.stderr).toBe(1)
+    expect(r.stderr).toContain('wastegate.topChamberVolumeM3: must ')
+    expect(r.stderr).not.toMatch(STACK_FRAME)
+  })
+})
+
+describe('a fault in the tool', () => {
+  // The model's modules replaced by ones that break, to see what the command line makes of each kind of error.
+  afterEach(() => {
+    vi.doUnmock('../src/pull/index.ts')
+    vi.doUnmock('../src/balance.ts')
+    vi.resetModules()
+  })
+  async function mainWith(path: '../src/pull/index.ts' | '../src/balance.ts', name: string, error: () => Error) {
+    vi.resetModules()
+    vi.doMock(path, async (importOriginal) => ({ ...(await importOriginal<object>()), [name]: () => { throw error() } }))
+    return (await import('../src/cli.ts')).main
+  }
+  async function runWith(m: typeof main, ...argv: string[]): Promise<Run> {
+    let stdout = ''
+    let stderr = ''
+    const code = await m(argv, { stdout: (t) => void (stdout += t), stderr: (t) => void (stderr += t), cwd: repoRoot })
+    return { code, stdout, stderr }
+  }
+  const oneLineFault = (r: Run) => {
+    expect(r.code).toBe(70)
+    expect(r.stdout).toBe('')
+    expect(r.stderr.trimEnd().split('\n')).toHaveLength(1)
+    expect(r.stderr).toMatch(/a fault in the tool, not in the file/)
+    expect(r.stderr).not.toMatch(STACK_FRAME)
+  }
+
+  it('pull: an error that is not a RangeError exits 70 with one line that says so', async () => {
+    const m = await mainWith('../src/pull/index.ts', 'runPull', () => new TypeError('state.at is not a function'))
+    const r = await runWith(m, 'pull', fourCylinder)
+    oneLineFault(r)
+    expect(r.stderr).toContain('sim pull')
+    expect(r.stderr).toContain('TypeError: state.at is not a function')
+  })
+
+  it('balance: the same', async () => {
+    const m = await mainWith('../src/balance.ts', 'computeBalance', () => new Error('unreachable arrangement'))
+    oneLineFault(await runWith(m, 'balance', fourCylinder))
+  })
+
+  it('sweep: the same, naming the point', async () => {
+    const m = await mainWith('../src/pull/index.ts', 'evaluateDynamicPoint', () => new TypeError('boom'))
+    const s = await exampleScenario()
+    const r = await runWith(m, 'sweep', writeJson('fault-sweep.json', { scenario: s, level: 'dynamic', axes: [{ path: 'exhaust.ratio', values: [1.5] }] }))
+    oneLineFault(r)
+    expect(r.stderr).toContain('at point 0 (exhaust.ratio = 1.5)')
+  })
+
+  it('a RangeError of the engine itself (runaway recursion) is a fault, not bad input', async () => {
+    const m = await mainWith('../src/pull/index.ts', 'runPull', () => new RangeError('Maximum call stack size exceeded'))
+    oneLineFault(await runWith(m, 'pull', fourCylinder))
+  })
+
+  it('a model RangeError that names no field is reported as input, and says the model named no field', async () => {
+    const m = await mainWith('../src/pull/index.ts', 'runPull', () => new RangeError('massKg must be a positive number, got NaN'))
+    const r = await runWith(m, 'pull', fourCylinder)
+    expect(r.code).toBe(1)
+    expect(r.stderr).toContain('  massKg must be a positive number, got NaN')
+    expect(r.stderr).toContain('the model names no field for this')
+    expect(r.stderr).not.toMatch(STACK_FRAME)
   })
 })

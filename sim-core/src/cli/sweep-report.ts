@@ -2,6 +2,7 @@ import { evaluateDynamicPoint, type DynamicPointResult, type PullFlags } from '.
 import { evaluateStaticPoint, pointAt, type StaticPointResult } from '../sweep-grid.ts'
 import { formatQuantity, type UnitSystem } from '../units.ts'
 import { CAUTION } from './describe.ts'
+import { SweepPointError } from './failures.ts'
 import type { SweepFile } from './input.ts'
 import { displayUnitOfField, formatFieldValue } from './quantities.ts'
 import { renderTable } from './table.ts'
@@ -14,17 +15,25 @@ export interface SweepRow {
   dynamic?: DynamicPointResult
 }
 
-/** Every point of a sweep at its level (static, dynamic or both), in index order. */
+/**
+ * Every point of a sweep at its level (static, dynamic or both), in index order. A point the model refuses or
+ * fails on throws a SweepPointError that names the point and carries the model's error.
+ */
 export function runSweep(sweep: SweepFile): SweepRow[] {
   const withStatic = sweep.level !== 'dynamic'
   const withDynamic = sweep.level !== 'static'
   return Array.from({ length: sweep.pointCount }, (_, index) => {
     const point = pointAt(sweep.scenario, sweep.axes, index)
-    return {
-      index,
-      values: point.values,
-      ...(withStatic ? { static: evaluateStaticPoint(point.scenario) } : {}),
-      ...(withDynamic ? { dynamic: evaluateDynamicPoint(point.scenario) } : {}),
+    try {
+      return {
+        index,
+        values: point.values,
+        ...(withStatic ? { static: evaluateStaticPoint(point.scenario) } : {}),
+        ...(withDynamic ? { dynamic: evaluateDynamicPoint(point.scenario) } : {}),
+      }
+    } catch (error) {
+      const where = sweep.axes.map((a, i) => `${a.path} = ${point.values[i]}`).join(', ')
+      throw new SweepPointError(index, where, error)
     }
   })
 }
