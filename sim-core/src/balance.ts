@@ -1,14 +1,24 @@
-import { circleArea, springTotals, wastegateAreas, type WastegateAreas } from './geometry.ts'
+import { springTotals, wastegateAreas, type WastegateAreas } from './geometry.ts'
 import { AIR } from './gas.ts'
+import { flowFunctionFor, type FlowFunction } from './orifice.ts'
+import { chamberPlumbing, openAreaM2, type ChamberPorts, type SourceKind } from './pull/chamber-plumbing.ts'
+import { chamberGas } from './pull/gases.ts'
+import { steadyChamberPressurePa } from './steady-chamber.ts'
 import { co2BottleState, type Co2BottleState } from './co2.ts'
 import type { Scenario } from './scenario.ts'
 
 /**
- * The static level (MODEL.md §2–3): each chamber's gauge pressure is affine in boost b,
- * p_top = α_t·b + β_t and p_bot = α_b·b + β_b, drive pressure p_em = r·b + p_em0, and the valve
- * cracks where F_net(0) crosses zero. Positive forces open the valve.
+ * The static level (MODEL.md §2–3, §4b): drive pressure p_em = r·b + p_em0, each chamber's gauge pressure from
+ * its plumbing's steady divider (steady-chamber.ts) — affine in boost b, p = α·b + β, wherever one path is open,
+ * as in §3 — and the valve cracks where F_net(0) crosses zero. Positive forces open the valve. Where a switching
+ * solenoid keeps two paths open the chamber pressure is the compressible divider's, not affine, and the crack is
+ * found by a root search; the pull's quasi-static chambers use the same divider, so the two levels agree.
  */
 
+/**
+ * Each chamber's gauge pressure as α·b + β. Exact where one path is open; for a switching solenoid's chamber it is
+ * the secant through zero boost and 1 bar of boost.
+ */
 export interface ChamberCoefficients {
   alphaTop: number
   betaTopPa: number
@@ -79,17 +89,6 @@ export interface BalanceResult {
   supply: SupplyAtBalance | null
 }
 
-/**
- * Quasi-static pressure fraction of a chamber between a feed orifice and a vent orifice, both subsonic and
- * small against the chamber: equal mass flows through the two areas give p_ch/p_src ≈ A_f²/(A_f² + A_v²)
- * (incompressible divider; within a few per cent of the compressible balance below about 1 bar).
- */
-export function dividerFraction(feedAreaM2: number, ventAreaM2: number): number {
-  const f2 = feedAreaM2 * feedAreaM2
-  const v2 = ventAreaM2 * ventAreaM2
-  return f2 + v2 === 0 ? 0 : f2 / (f2 + v2)
-}
-
 const regulate = (setpointPa: number, sourcePa: number, droopPa: number) => {
   const deliveredPa = Math.max(0, Math.min(setpointPa, sourcePa - droopPa))
   return { deliveredPa, belowSetpoint: deliveredPa < setpointPa }
@@ -134,54 +133,98 @@ export function regulatedSupply(s: Scenario): SupplyAtBalance | null {
   }
 }
 
-/** The gauge pressure the supply offers the top port: boost itself (α = 1) or the regulated pressure (β). */
-function supplySource(s: Scenario): { alpha: number; betaPa: number } {
-  const regulated = regulatedSupply(s)
-  return regulated === null ? { alpha: 1, betaPa: 0 } : { alpha: 0, betaPa: regulated.deliveredPa }
+/** A chamber's open paths (at the arrangement's duty) and what each leads to, for the steady divider. */
+interface ChamberPaths {
+  areasM2: Float64Array
+  sources: SourceKind[]
+  sqrtRT: number
+  flow: FlowFunction
 }
 
-/** Maps a port arrangement to its (α, β) pairs (MODEL.md §3). */
-export function chamberCoefficients(s: Scenario): ChamberCoefficients {
+/**
+ * The chambers as the static level sees them: their gauge pressures at any boost, and whether that is affine
+ * (one open path each). A closed loop is taken at its floor duty, where it starts a pull.
+ */
+export interface StaticChambers {
+  affine: boolean
+  coefficients: ChamberCoefficients
+  /** Gauge pressures of the top and bottom chambers at boost b. */
+  at(boostPa: number): { topPa: number; bottomPa: number }
+}
+
+/**
+ * What a pull held in its settling window, for the static balance at the settled lift: the solenoid's mean duty
+ * and what the regulator delivered (a bottle cools and a tank falls over a pull), the drive-to-boost ratio the pull
+ * showed, and the pressure downstream of the valve. Gauge pressures, Pa.
+ */
+export interface WindowConditions {
+  duty?: number
+  suppliedPa?: number
+  ratio?: number
+  downstreamPa?: number
+}
+
+export function staticChambers(s: Scenario, held: WindowConditions = {}): StaticChambers {
+  const plumbing = chamberPlumbing(s)
   const c = s.control
-  const src = supplySource(s)
-  const none: ChamberCoefficients = { alphaTop: 0, betaTopPa: 0, alphaBottom: 0, betaBottomPa: 0 }
-  switch (c.kind) {
-    case 'none':
-      return none
-    case 'bottom-boost':
-      return { ...none, alphaBottom: 1 }
-    case 'top-supply':
-      return { ...none, alphaTop: src.alpha, betaTopPa: src.betaPa }
-    case 'both':
-      return { alphaTop: src.alpha, betaTopPa: src.betaPa, alphaBottom: 1, betaBottomPa: 0 }
-    case 'bleed-top':
-      return { ...none, alphaTop: c.fraction, alphaBottom: c.bottomOnBoost ? 1 : 0 }
-    case 'solenoid-3port': {
-      const sol = c.duty * circleArea(c.solenoidDiameterM)
-      const restrictor = circleArea(c.restrictorDiameterM)
-      if (c.chamber === 'bottom') {
-        // Boost feeds the bottom chamber through the restrictor; the solenoid vents it as duty rises.
-        return { ...none, alphaBottom: dividerFraction(restrictor, sol) }
-      }
-      // The solenoid feeds the top chamber from the supply; the restrictor bleeds it to the air.
-      const k = dividerFraction(sol, restrictor)
-      return { ...none, alphaTop: src.alpha * k, betaTopPa: src.betaPa * k }
-    }
-    case 'solenoid-4port':
-    case 'closed-loop': {
-      // Closed loop: the static level is the arrangement at the controller's floor duty, where it starts a pull.
-      const duty = c.kind === 'closed-loop' ? c.dutyMin : c.duty
-      const sol = duty * circleArea(c.solenoidDiameterM)
-      const restrictor = circleArea(c.restrictorDiameterM)
-      const top = dividerFraction(sol, restrictor)
-      return {
-        alphaTop: src.alpha * top,
-        betaTopPa: src.betaPa * top,
-        alphaBottom: c.kind === 'solenoid-4port' ? dividerFraction(restrictor, sol) : 0,
-        betaBottomPa: 0,
-      }
+  const duty = held.duty ?? (c.kind === 'closed-loop' ? c.dutyMin : (plumbing.fixedDuty ?? 0))
+  const regulatedAtRest = regulatedSupply(s)
+  const regulated =
+    regulatedAtRest !== null && held.suppliedPa !== undefined ? { ...regulatedAtRest, deliveredPa: held.suppliedPa } : regulatedAtRest
+  const pAmb = s.ambient.pressurePa
+  const temperatureK = s.ambient.temperatureK
+  const pathsOf = (ports: ChamberPorts): ChamberPaths => {
+    const open = ports.connections.filter((k) => openAreaM2(k, duty) > 0)
+    const gas = chamberGas(s, ports.connections)
+    return {
+      areasM2: Float64Array.from(open.map((k) => openAreaM2(k, duty))),
+      sources: open.map((k) => k.source),
+      sqrtRT: Math.sqrt(gas.gasConstant * temperatureK),
+      flow: flowFunctionFor(gas.gamma),
     }
   }
+  /** Gauge pressure of a source at boost b, and its (α, β). */
+  const source = (kind: SourceKind, b: number): number => {
+    switch (kind) {
+      case 'intake':
+        return b
+      case 'ambient':
+        return 0
+      case 'supply':
+        return regulated === null ? b : regulated.deliveredPa
+      case 'bleed':
+        return plumbing.bleedFraction * b
+    }
+  }
+  const top = pathsOf(plumbing.top)
+  const bottom = pathsOf(plumbing.bottom)
+  const sourcesPa = new Float64Array(8)
+  const pressure = (paths: ChamberPaths, b: number): number => {
+    const n = paths.sources.length
+    if (n === 0) return 0
+    if (n === 1) return source(paths.sources[0]!, b)
+    for (let i = 0; i < n; i++) sourcesPa[i] = pAmb + source(paths.sources[i]!, b)
+    return steadyChamberPressurePa(paths.areasM2, sourcesPa, n, paths.sqrtRT, paths.flow, pAmb) - pAmb
+  }
+  const at = (b: number) => ({ topPa: pressure(top, b), bottomPa: pressure(bottom, b) })
+  const affine = top.sources.length <= 1 && bottom.sources.length <= 1
+  const zero = at(0)
+  const one = at(100_000)
+  return {
+    affine,
+    coefficients: {
+      alphaTop: (one.topPa - zero.topPa) / 100_000,
+      betaTopPa: zero.topPa,
+      alphaBottom: (one.bottomPa - zero.bottomPa) / 100_000,
+      betaBottomPa: zero.bottomPa,
+    },
+    at,
+  }
+}
+
+/** Maps a port arrangement to its (α, β) pairs (MODEL.md §3); see ChamberCoefficients for switching solenoids. */
+export function chamberCoefficients(s: Scenario): ChamberCoefficients {
+  return staticChambers(s).coefficients
 }
 
 /** Exhaust mass flow at the end of the pull at boost b (four-stroke: ṁ = η_v·ρ_im·V_d·N/120 · (1 + 1/AFR)). */
@@ -205,22 +248,19 @@ function downstreamPa(s: Scenario, boostPa: number, atFullOpen: boolean): number
 
 interface BalanceInputs {
   areas: WastegateAreas
-  chambers: ChamberCoefficients
+  chambers: StaticChambers
   ratio: number
   driveAtZeroBoostPa: number
+  /** A downstream pressure held fixed (a pull's window), in place of the one the static level works out. */
+  downstreamPa?: number
 }
 
 /** F_net(x) at boost b (MODEL.md §2), with the spring at `springForceN`. */
 function netForce(inp: BalanceInputs, springForceN: number, boostPa: number, downstreamGaugePa: number): number {
-  const { areas: a, chambers: c } = inp
+  const { areas: a } = inp
   const drive = inp.ratio * Math.max(boostPa, 0) + inp.driveAtZeroBoostPa
-  return (
-    drive * a.valveM2 +
-    (c.alphaBottom * boostPa + c.betaBottomPa) * a.bottomM2 -
-    springForceN -
-    (c.alphaTop * boostPa + c.betaTopPa) * a.topM2 -
-    downstreamGaugePa * a.valveBackM2
-  )
+  const { topPa, bottomPa } = inp.chambers.at(boostPa)
+  return drive * a.valveM2 + bottomPa * a.bottomM2 - springForceN - topPa * a.topM2 - downstreamGaugePa * a.valveBackM2
 }
 
 const NEVER_REASON =
@@ -230,20 +270,29 @@ const SEARCH_LIMIT_PA = 2_000_000
 
 /** The boost at which F_net = 0 with the spring at `springForceN`. */
 function solveBoost(s: Scenario, inp: BalanceInputs, springForceN: number, atFullOpen: boolean): BoostOutcome {
-  const { areas: a, chambers: c } = inp
+  const { areas: a } = inp
+  const c = inp.chambers.coefficients
   const slope = inp.ratio * a.valveM2 + c.alphaBottom * a.bottomM2 - c.alphaTop * a.topM2
-  if (s.exhaust.downstream.kind === 'vented' || (s.exhaust.downstream.kind === 'restricted' && !atFullOpen)) {
-    // Closed form of MODEL.md §3 (p_dn = 0).
+  const held = inp.downstreamPa
+  const noDownstream =
+    held === undefined && (s.exhaust.downstream.kind === 'vented' || (s.exhaust.downstream.kind === 'restricted' && !atFullOpen))
+  if (inp.chambers.affine && (noDownstream || held !== undefined)) {
+    // Closed form of MODEL.md §3, with p_dn zero or held.
     const numerator =
-      springForceN + c.betaTopPa * a.topM2 - c.betaBottomPa * a.bottomM2 - inp.driveAtZeroBoostPa * a.valveM2
+      springForceN +
+      c.betaTopPa * a.topM2 -
+      c.betaBottomPa * a.bottomM2 -
+      inp.driveAtZeroBoostPa * a.valveM2 +
+      (held ?? 0) * a.valveBackM2
     if (numerator <= 0) {
       return { status: 'open-at-zero-boost', boostPa: slope > 0 ? numerator / slope : 0 }
     }
     if (slope <= 0) return { status: 'never-opens', reason: NEVER_REASON }
     return { status: 'opens', boostPa: numerator / slope }
   }
-  // p_dn rises with boost: find the first crossing by a coarse scan, then bisect.
-  const h = (b: number) => netForce(inp, springForceN, b, downstreamPa(s, b, atFullOpen))
+  // p_dn rises with boost, or a switching solenoid's divider bends the chamber pressure: find the first crossing by
+  // a coarse scan, then bisect.
+  const h = (b: number) => netForce(inp, springForceN, b, held ?? (noDownstream ? 0 : downstreamPa(s, b, atFullOpen)))
   if (h(0) >= 0) return { status: 'open-at-zero-boost', boostPa: 0 }
   const step = 5_000
   let lo = 0
@@ -260,11 +309,11 @@ function solveBoost(s: Scenario, inp: BalanceInputs, springForceN: number, atFul
   }
   return {
     status: 'never-opens',
-    reason: slope <= 0 ? NEVER_REASON : 'pressure downstream of the valve keeps it shut at any boost up to 2 MPa',
+    reason: slope <= 0 || noDownstream ? NEVER_REASON : 'pressure downstream of the valve keeps it shut at any boost up to 2 MPa',
   }
 }
 
-function inputsFor(s: Scenario, ratio: number, chambers: ChamberCoefficients = chamberCoefficients(s)): BalanceInputs {
+function inputsFor(s: Scenario, ratio: number, chambers: StaticChambers = staticChambers(s)): BalanceInputs {
   return {
     areas: wastegateAreas(s.wastegate),
     chambers,
@@ -273,19 +322,22 @@ function inputsFor(s: Scenario, ratio: number, chambers: ChamberCoefficients = c
   }
 }
 
-/** Boost that holds the valve at lift x: b_at(x), the spring at F0 + k·x. */
-export function boostAtLift(s: Scenario, liftM: number, ratio = s.exhaust.ratio): BoostOutcome {
-  const inp = inputsFor(s, ratio)
+/**
+ * Boost that holds the valve at lift x: b_at(x), the spring at F0 + k·x; at the scenario's own ratio, or under the
+ * conditions a pull held in its settling window.
+ */
+export function boostAtLift(s: Scenario, liftM: number, held: WindowConditions = {}): BoostOutcome {
+  const inp: BalanceInputs = { ...inputsFor(s, held.ratio ?? s.exhaust.ratio, staticChambers(s, held)) }
+  if (held.downstreamPa !== undefined) inp.downstreamPa = held.downstreamPa
   const { seatForceN, rateNPerM } = springTotals(s.springs, inp.areas)
   const x = Math.min(Math.max(liftM, 0), s.wastegate.maxLiftM)
   return solveBoost(s, inp, seatForceN + rateNPerM * x, x >= s.wastegate.maxLiftM)
 }
 
 function forcesAt(s: Scenario, inp: BalanceInputs, seatForceN: number, boostPa: number): ForceTerm[] {
-  const { areas: a, chambers: c } = inp
+  const { areas: a } = inp
   const drive = inp.ratio * Math.max(boostPa, 0) + inp.driveAtZeroBoostPa
-  const bottom = c.alphaBottom * boostPa + c.betaBottomPa
-  const top = c.alphaTop * boostPa + c.betaTopPa
+  const { topPa: top, bottomPa: bottom } = inp.chambers.at(boostPa)
   const down = downstreamPa(s, boostPa, false)
   return [
     { key: 'drive', forceN: drive * a.valveM2, pressurePa: drive, areaM2: a.valveM2 },
@@ -294,6 +346,33 @@ function forcesAt(s: Scenario, inp: BalanceInputs, seatForceN: number, boostPa: 
     { key: 'top', forceN: -top * a.topM2, pressurePa: top, areaM2: a.topM2 },
     { key: 'downstream', forceN: -down * a.valveBackM2, pressurePa: down, areaM2: a.valveBackM2 },
   ]
+}
+
+/**
+ * The solenoid duty at which the valve of a closed loop cracks at boost b: the base duty a controller starts from (its
+ * feed-forward; the loop's PID only trims about it). The static balance at the seat with the chambers at that duty's
+ * divider, drive at the scenario's ratio; the duty is clamped to the loop's limits, so a boost the solenoid cannot
+ * reach gets the nearer limit. Null for a scenario without a closed loop.
+ */
+export function dutyToCrackAt(s: Scenario, boostPa: number): number | null {
+  const c = s.control
+  if (c.kind !== 'closed-loop') return null
+  const inp = inputsFor(s, s.exhaust.ratio)
+  const { seatForceN } = springTotals(s.springs, inp.areas)
+  const down = downstreamPa(s, boostPa, false)
+  const net = (duty: number) => netForce({ ...inp, chambers: staticChambers(s, { duty }) }, seatForceN, boostPa, down)
+  let lo = c.dutyMin
+  let hi = c.dutyMax
+  const fLo = net(lo)
+  const fHi = net(hi)
+  // Either end may be the one that opens the valve (duty feeds one chamber and vents the other).
+  if (fLo === fHi || Math.sign(fLo) === Math.sign(fHi)) return Math.abs(fLo) <= Math.abs(fHi) ? lo : hi
+  for (let i = 0; i < 40; i++) {
+    const mid = 0.5 * (lo + hi)
+    if (Math.sign(net(mid)) === Math.sign(fLo)) lo = mid
+    else hi = mid
+  }
+  return 0.5 * (lo + hi)
 }
 
 /** Ratios of the "anywhere from 1:1 to 2:1" answer. */
@@ -315,7 +394,7 @@ export function computeBalance(s: Scenario): BalanceResult {
     seatForceN,
     rateNPerM,
     maxLiftM: s.wastegate.maxLiftM,
-    chambers: inp.chambers,
+    chambers: inp.chambers.coefficients,
     ratio: inp.ratio,
     driveAtZeroBoostPa: inp.driveAtZeroBoostPa,
     crack,

@@ -46,3 +46,11 @@ export function springTotals(springs: readonly Spring[], areas: WastegateAreas):
   }
   return { seatForceN, rateNPerM }
 }
+
+/** Chamber volumes of one gate with the valve shut, m³: as entered, or derived from the actuator (scenario.ts). */
+export function chamberVolumes(w: Scenario['wastegate'], areas: WastegateAreas = wastegateAreas(w)): { topM3: number; bottomM3: number } {
+  return {
+    topM3: w.topChamberVolumeM3 ?? areas.topM2 * (w.maxLiftM + w.chamberClearanceM),
+    bottomM3: w.bottomChamberVolumeM3 ?? areas.bottomM2 * w.chamberClearanceM,
+  }
+}

@@ -72,10 +72,20 @@ export const wastegateSchema = section({
   movingMassKg: positive(5).default(0.15),
   dampingRatio: nonNegative(5).default(0.3),
   valveDischargeCoefficient: positive(1).default(0.7),
-  topChamberVolumeM3: positive(0.001).default(60e-6),
-  bottomChamberVolumeM3: positive(0.001).default(25e-6),
-  /** Port and vent bore of the actuator fittings. */
-  portDiameterM: positive(0.02).default(0.001),
+  /**
+   * Chamber volumes with the valve shut. Left out, they come from the actuator: the top chamber is its area times
+   * (full lift + clearance), the bottom chamber its area times the clearance (geometry.ts, chamberVolumes), so any
+   * gate the schema accepts keeps room above the piston at full lift.
+   */
+  topChamberVolumeM3: positive(0.01).optional(),
+  bottomChamberVolumeM3: positive(0.01).optional(),
+  /** Gap left in a chamber at the end of the piston's travel, for the derived volumes: 3 mm (common practice, no source). */
+  chamberClearanceM: positive(0.05).default(0.003),
+  /**
+   * Through-bore of the actuator's port fittings, which a port open to the air vents through: 3 mm, the bore of an
+   * ordinary 1/8 NPT hose fitting for 4 mm hose (common practice, no source).
+   */
+  portDiameterM: positive(0.02).default(0.003),
   portDischargeCoefficient: positive(1).default(0.7),
   /** Lift above which the valve counts as cracked (0.005 in). */
   crackThresholdM: positive(0.005).default(0.000127),
@@ -85,6 +95,17 @@ export const wastegateSchema = section({
   }
   if (w.actuatorDiameterM <= w.shaftDiameterM) {
     ctx.addIssue({ code: 'custom', path: ['actuatorDiameterM'], message: 'must be larger than wastegate.shaftDiameterM' })
+  }
+  if (w.topChamberVolumeM3 !== undefined) {
+    // The piston sweeps the top chamber's area over the full lift; a chamber smaller than that has no room left.
+    const swept = (w.topAreaM2 ?? (Math.PI * w.actuatorDiameterM ** 2) / 4) * w.maxLiftM
+    if (w.topChamberVolumeM3 <= swept) {
+      ctx.addIssue({
+        code: 'custom',
+        path: ['topChamberVolumeM3'],
+        message: `must exceed the volume the piston sweeps at full lift (${(swept * 1e6).toFixed(1)} cm³); leave it out to derive it from the actuator`,
+      })
+    }
   }
 })
 
@@ -107,6 +128,9 @@ export const springSchema = z.discriminatedUnion(
   oneOf('must say where the spring comes from: "seat" (seat force) or "bench" (bench crack pressure)'),
 )
 
+/** Orifice of a boost-control solenoid's paths: 1.5 mm (common practice, no source). */
+const SOLENOID_ORIFICE = positive(0.01).default(0.0015)
+
 export const controlSchema = z.discriminatedUnion(
   'kind',
   [
@@ -124,23 +148,27 @@ export const controlSchema = z.discriminatedUnion(
       fraction: fraction(),
       bottomOnBoost: flag().default(true),
     }),
-    /** A three-port solenoid: it feeds one chamber from its source or vents it, by duty. */
+    /**
+     * A three-port solenoid, a switching valve: for the duty's share of each cycle it joins the chamber to its source
+     * (boost for the bottom chamber, the supply for the top), for the rest to its vent; each path is the solenoid's
+     * orifice. More duty means less bottom pressure or more top pressure: more boost either way.
+     */
     section({
       kind: z.literal('solenoid-3port'),
       chamber: choice(['bottom', 'top']),
       duty: fraction(),
-      solenoidDiameterM: positive(0.01).default(0.0015),
-      /** The fixed restrictor that feeds or vents the chamber against the solenoid. */
-      restrictorDiameterM: positive(0.01).default(0.001),
+      solenoidDiameterM: SOLENOID_ORIFICE,
     }),
-    /** A four-port solenoid: boost to the bottom chamber and supply to the top, traded by duty. */
+    /**
+     * A four-port solenoid, a switching valve with two states: boost to the bottom chamber with the top vented, or the
+     * supply to the top chamber with the bottom vented; the duty is the share of each cycle in the second state.
+     */
     section({
       kind: z.literal('solenoid-4port'),
       duty: fraction(),
-      solenoidDiameterM: positive(0.01).default(0.0015),
-      restrictorDiameterM: positive(0.01).default(0.001),
+      solenoidDiameterM: SOLENOID_ORIFICE,
     }),
-    /** Top port on the supply through a solenoid in closed loop on a boost target. */
+    /** Top port on the supply through a three-port solenoid (as above, on the top chamber) in closed loop on a boost target. */
     section({
       kind: z.literal('closed-loop'),
       targetBoostPa: positive(1_000_000),
@@ -149,19 +177,27 @@ export const controlSchema = z.discriminatedUnion(
         .max(32, { error: 'takes at most 32 points' })
         .optional(),
       /**
-       * PID gains, duty per Pa of boost error (P), per Pa·s (I) and per Pa/s of boost rise (D, on boost itself).
-       * Tuned on the default scenario with a top port on boost: K_p 0.69 per psi, T_i = K_p/K_i ≈ 0.67 s,
-       * T_d = K_d/K_p = 0.2 s. The derivative lets the valve crack while boost is still climbing fast, which a
-       * spooling turbo needs: without it that pull overshoots a 12 psi target by over 3 psi and hunts
-       * (test/pull/control-arrangements.test.ts).
+       * PID gains about a base duty, duty per Pa of boost error (P), per Pa·s (I) and per Pa/s of boost rise (D, on
+       * boost itself). The base duty is the one that cracks the valve at the target (balance.ts, dutyToCrackAt), as a
+       * controller's base-duty table would hold; the PID only trims about it, and the integral runs only within 2 psi
+       * of the target. Defaults tuned on the default scenario with the top port on boost: K_p 3.4 % duty per psi,
+       * T_i = K_p/K_i ≈ 0.17 s, no derivative (it cracks the valve earlier on a fast spool at about twice the
+       * computing cost; test/pull/control-arrangements.test.ts).
        */
-      proportionalPerPa: nonNegative().default(1e-4),
-      integralPerPaS: nonNegative().default(1.5e-4),
-      derivativeSPerPa: nonNegative().default(2e-5),
+      proportionalPerPa: nonNegative().default(5e-6),
+      integralPerPaS: nonNegative().default(3e-5),
+      derivativeSPerPa: nonNegative().default(0),
       dutyMin: fraction().default(0),
       dutyMax: fraction().default(1),
-      solenoidDiameterM: positive(0.01).default(0.0015),
-      restrictorDiameterM: positive(0.01).default(0.001),
+      solenoidDiameterM: SOLENOID_ORIFICE,
+    }).superRefine((c, ctx) => {
+      if (c.dutyMax < c.dutyMin) ctx.addIssue({ code: 'custom', path: ['dutyMax'], message: 'must be at least control.dutyMin' })
+      const table = c.targetByRpm ?? []
+      for (let i = 1; i < table.length; i++) {
+        if (table[i]!.rpm <= table[i - 1]!.rpm) {
+          ctx.addIssue({ code: 'custom', path: ['targetByRpm', i, 'rpm'], message: 'must be larger than the rpm before it' })
+        }
+      }
     }),
   ],
   oneOf('must be one of "none", "bottom-boost", "top-supply", "both", "bleed-top", "solenoid-3port", "solenoid-4port", "closed-loop"'),
@@ -182,8 +218,10 @@ export const supplySchema = z.discriminatedUnion(
     section({
       kind: z.literal('co2'),
       ...regulator,
-      bottleVolumeM3: positive(0.05).default(0.0046), // about a 5 lb bottle (common practice, no source)
-      fillMassKg: positive(20).default(2.27), // 5 lb of liquid CO₂
+      // A 5 lb bottle, normally filled: 2.27 kg of CO₂ at 0.68 kg per litre of water volume, so 3.34 L (common
+      // practice, no source: bottles are sized and filled at about 0.68 kg/L).
+      bottleVolumeM3: positive(0.05).default(0.00334),
+      fillMassKg: positive(20).default(2.27),
       bottleTemperatureK: num({ min: 230, max: 350 }).default(298.15),
     }).superRefine((b, ctx) => {
       // More than the densest liquid CO₂ per volume cannot be in the bottle at any temperature (co2.ts).
@@ -208,10 +246,31 @@ export const supplySchema = z.discriminatedUnion(
       ratedFlowM3PerS: positive(0.05).default(0.00047), // about 1 scfm
       maxPressurePa: positive(5_000_000).default(1_378_951), // 200 psi gauge
       initialTankPa: nonNegative(5_000_000).optional(),
+    }).superRefine((c, ctx) => {
+      if (c.cutOutPa <= c.cutInPa) ctx.addIssue({ code: 'custom', path: ['cutOutPa'], message: 'must be above supply.cutInPa' })
+      if (c.maxPressurePa <= c.cutOutPa) ctx.addIssue({ code: 'custom', path: ['maxPressurePa'], message: 'must be above supply.cutOutPa' })
     }),
   ],
   oneOf('must be one of "boost", "co2", "compressor"'),
 )
+
+/**
+ * The hose from a port's source (boost, the regulator, or a solenoid) to the actuator: its bore and length set how
+ * fast the chamber fills, and its volume adds to the chamber's. A port open to the air vents through the fitting
+ * alone (wastegate.portDiameterM). Defaults are ordinary shop plumbing: 4 mm hose, half a metre (common practice,
+ * no source).
+ */
+export const portLineSchema = section({
+  boreM: positive(0.02).default(0.004),
+  lengthM: nonNegative(10).default(0.5),
+  /** A restrictor (pill) in the line; left out, there is none. */
+  restrictorDiameterM: positive(0.02).optional(),
+})
+
+export const plumbingSchema = section({
+  top: portLineSchema.prefault({}),
+  bottom: portLineSchema.prefault({}),
+})
 
 export const downstreamSchema = z.discriminatedUnion(
   'kind',
@@ -230,17 +289,32 @@ export const exhaustSchema = section({
   mode: choice(['ratio', 'turbine']).default('ratio'),
   /** Drive-to-boost pressure ratio (gauge over gauge); the trade reasons with 1:1 to 2:1. */
   ratio: num({ min: 0.5, max: 4 }),
+  /**
+   * Drive-to-boost ratio by rpm, as a back-pressure gauge gives it at a few rpm (interpolated, held outside); when
+   * given, a pull in ratio mode follows it instead of `ratio`, which the static level keeps using.
+   */
+  ratioByRpm: list(section({ rpm: positive(20_000), ratio: num({ min: 0.5, max: 4 }) }))
+    .min(1, { error: 'needs at least one point' })
+    .max(32, { error: 'takes at most 32 points' })
+    .optional(),
   /** Drive pressure at zero boost, gauge. */
   driveAtZeroBoostPa: nonNegative(500_000).default(0),
   downstream: downstreamSchema.prefault({ kind: 'vented' }),
   /** Exhaust system loss after the turbine: p_to = p_amb + K_ex·ṁ_t². */
   backPressureCoefficientPaPerKg2S2: nonNegative(1e8).default(40_000),
   /** Effective turbine flow area (turbine mode). */
-  turbineAreaM2: positive(0.05).default(0.0008),
+  turbineAreaM2: positive(0.05).default(0.0004),
   /** Exhaust gas c_pe; R_e = c_pe·(γ_e − 1)/γ_e is derived from it (typical of burnt gasoline mixtures; common practice, no source). */
   gasSpecificHeatJPerKgK: num({ min: 900, max: 1500 }).default(1150),
   /** Exhaust gas γ_e. */
   gasHeatCapacityRatio: num({ min: 1.2, max: 1.4 }).default(1.33),
+}).superRefine((x, ctx) => {
+  const table = x.ratioByRpm ?? []
+  for (let i = 1; i < table.length; i++) {
+    if (table[i]!.rpm <= table[i - 1]!.rpm) {
+      ctx.addIssue({ code: 'custom', path: ['ratioByRpm', i, 'rpm'], message: 'must be larger than the rpm before it' })
+    }
+  }
 })
 
 export const engineSchema = section({
@@ -320,6 +394,7 @@ export const scenarioSchema = section({
   control: controlSchema,
   supply: supplySchema,
   exhaust: exhaustSchema,
+  plumbing: plumbingSchema.prefault({}),
   /** The user's boost limit, gauge; results above it are flagged. */
   boostLimitPa: positive(1_000_000).optional(),
   solver: solverSchema.prefault({}),
@@ -330,6 +405,7 @@ export type ScenarioInput = z.input<typeof scenarioSchema>
 export type Spring = z.output<typeof springSchema>
 export type Control = z.output<typeof controlSchema>
 export type Supply = z.output<typeof supplySchema>
+export type PortLine = z.output<typeof portLineSchema>
 
 export interface FieldIssue {
   /** Dotted path into the scenario, e.g. `wastegate.valveDiameterM`. */

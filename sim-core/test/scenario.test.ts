@@ -90,3 +90,47 @@ describe('CO₂ bottle fill', () => {
     }
   })
 })
+
+describe('numbers that must fit together', () => {
+  it('refuses each pair that cannot, naming the field to change', () => {
+    const cases: [string, (s: Record<string, unknown>) => void, { path: string; message: RegExp }][] = [
+      [
+        // 62 mm diaphragm at 12 mm of lift sweeps 36.2 cm³: a 30 cm³ top chamber cannot hold the stroke.
+        'a top chamber smaller than the stroke',
+        (s) => (s.wastegate = { ...(s.wastegate as object), actuatorDiameterM: 0.062, maxLiftM: 0.012, topChamberVolumeM3: 30e-6 }),
+        { path: 'wastegate.topChamberVolumeM3', message: /must exceed the volume the piston sweeps at full lift \(36\.2 cm³\)/ },
+      ],
+      [
+        'a compressor that cuts out below its cut-in',
+        (s) => (s.supply = { kind: 'compressor', regulatorSetpointPa: 70_000, cutInPa: 900_000, cutOutPa: 800_000 }),
+        { path: 'supply.cutOutPa', message: /must be above supply\.cutInPa/ },
+      ],
+      [
+        'a compressor whose flow stops below its cut-out',
+        (s) => (s.supply = { kind: 'compressor', regulatorSetpointPa: 70_000, maxPressurePa: 1_000_000 }),
+        { path: 'supply.maxPressurePa', message: /must be above supply\.cutOutPa/ },
+      ],
+      [
+        'a closed loop whose highest duty is below its lowest',
+        (s) => (s.control = { kind: 'closed-loop', targetBoostPa: 80_000, dutyMin: 0.6, dutyMax: 0.4 }),
+        { path: 'control.dutyMax', message: /must be at least control\.dutyMin/ },
+      ],
+      [
+        'a boost target table whose rpm does not rise',
+        (s) => (s.control = { kind: 'closed-loop', targetBoostPa: 80_000, targetByRpm: [{ rpm: 5000, boostPa: 80_000 }, { rpm: 5000, boostPa: 90_000 }] }),
+        { path: 'control.targetByRpm.1.rpm', message: /must be larger than the rpm before it/ },
+      ],
+      [
+        'a drive-to-boost ratio table whose rpm does not rise',
+        (s) => (s.exhaust = { ...(s.exhaust as object), ratioByRpm: [{ rpm: 6000, ratio: 1.5 }, { rpm: 4000, ratio: 1.7 }] }),
+        { path: 'exhaust.ratioByRpm.1.rpm', message: /must be larger than the rpm before it/ },
+      ],
+    ]
+    for (const [what, patch, expected] of cases) {
+      const issues = issuesOf(patch)
+      expect(issues, what).toHaveLength(1)
+      expect(issues[0]!.path, what).toBe(expected.path)
+      expect(issues[0]!.message, what).toMatch(expected.message)
+    }
+  })
+})

@@ -1,5 +1,5 @@
 import { CO2_GAS_CONSTANT } from '../co2.ts'
-import type { GasProperties } from '../gas.ts'
+import { AIR, type GasProperties } from '../gas.ts'
 import type { Scenario } from '../scenario.ts'
 
 /**
@@ -19,3 +19,11 @@ export function exhaustGas(exhaust: Scenario['exhaust']): GasProperties {
   return Object.freeze({ gasConstant: (cp * (gamma - 1)) / gamma, gamma, cp })
 }
 
+
+/**
+ * The gas in a chamber: CO₂ when a CO₂ bottle feeds it, else air. Both levels take it from here, so the static
+ * divider and the pull's chambers flow the same gas.
+ */
+export function chamberGas(s: Scenario, connections: readonly { source: string }[]): GasProperties {
+  return s.supply.kind === 'co2' && connections.some((k) => k.source === 'supply') ? CO2_CHAMBER_GAS : AIR
+}

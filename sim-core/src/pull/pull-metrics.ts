@@ -1,4 +1,4 @@
-import { boostAtLift, computeBalance } from '../balance.ts'
+import { boostAtLift, computeBalance, type WindowConditions } from '../balance.ts'
 import { springTotals, wastegateAreas } from '../geometry.ts'
 import type { Scenario } from '../scenario.ts'
 import type { PullFlags, PullMetrics, PullSeries } from './pull-result.ts'
@@ -116,18 +116,19 @@ export function pullMetrics(
   if (settledBoostPa !== null && windowBoost > 0) driveRatioSeen = windowDrive / windowBoost
   else if (boost[peakAt]! > 0) driveRatioSeen = series.drivePa[peakAt]! / boost[peakAt]!
 
-  // The static balance at the settled lift; in turbine mode at the ratio the pull itself showed.
+  // The static balance at the settled lift, under what the pull held in the window: the drive-to-boost ratio it
+  // showed (a ratio table, the drive needed to pass the exhaust, or the turbine's own), the duty a closed loop
+  // settled on, what the regulator delivered and the pressure downstream of the valve.
   let staticBoostAtSettledLiftPa: number | null = null
   if (settledLiftM !== null) {
-    const ratio =
-      s.exhaust.mode === 'ratio' || windowBoost <= 0
-        ? s.exhaust.ratio
-        : (windowDrive - s.exhaust.driveAtZeroBoostPa) / windowBoost
-    // A closed loop's static arrangement is its solenoid held at the window's mean duty.
-    const c = s.control
-    const meanDuty = mean(windowIndices.map((i) => series.duty[i]!))
-    const atDuty = c.kind === 'closed-loop' ? { ...s, control: { ...c, dutyMin: meanDuty, dutyMax: meanDuty } } : s
-    const b = boostAtLift(atDuty, settledLiftM, ratio)
+    const ratio = windowBoost <= 0 ? s.exhaust.ratio : (windowDrive - s.exhaust.driveAtZeroBoostPa) / windowBoost
+    const held: WindowConditions = {
+      ratio,
+      duty: mean(windowIndices.map((i) => series.duty[i]!)),
+      downstreamPa: mean(windowIndices.map((i) => r.downstreamPa[i]!)),
+    }
+    if (s.supply.kind !== 'boost') held.suppliedPa = mean(windowIndices.map((i) => series.regulatedPa[i]!))
+    const b = boostAtLift(s, settledLiftM, held)
     staticBoostAtSettledLiftPa = b.status === 'opens' ? b.boostPa : null
   }
 

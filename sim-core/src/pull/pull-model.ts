@@ -1,14 +1,18 @@
-import { co2BottlePressurePa, co2SaturatedLiquidDensityKgM3, co2SaturatedVapourDensityKgM3, co2SaturationPressurePa, CO2_CRITICAL } from '../co2.ts'
+import { co2BottlePressureFunction, co2BottlePressurePa } from '../co2.ts'
 import { compressorConstants } from '../compressor.ts'
 import { interpolateTable } from '../engine.ts'
 import { AIR } from '../gas.ts'
-import { springTotals, wastegateAreas } from '../geometry.ts'
+import { dutyToCrackAt } from '../balance.ts'
+import { bracketedRoot } from '../bracketed-root.ts'
+import { chamberVolumes, springTotals, wastegateAreas } from '../geometry.ts'
 import { flowFunctionFor, orificeFlowKgS, type FlowFunction } from '../orifice.ts'
 import type { Scenario } from '../scenario.ts'
 import { STANDARD_AIR } from '../units.ts'
-import { chamberPlumbing, type SourceKind } from './chamber-plumbing.ts'
-import { CO2_CHAMBER_GAS, exhaustGas } from './gases.ts'
+import { steadyChamberPressurePa } from '../steady-chamber.ts'
+import { chamberPlumbing, type DutyShare, type SourceKind } from './chamber-plumbing.ts'
+import { chamberGas, exhaustGas } from './gases.ts'
 import type { HybridSystem } from './hybrid-integrator.ts'
+import { impliedTurbineAreaM2 } from './implied-turbine.ts'
 
 /**
  * The mean-value model of one wide-open-throttle pull (MODEL.md §4 with the guards of §4a), as a hybrid
@@ -77,22 +81,35 @@ export interface PullOutputs {
   supplyDrawKgS: number
   compressorFlowToTankKgS: number
   targetBoostPa: number
+  /** The shaft's power balance: J·ω·dω/dt = turbine − compressor − friction, W. */
+  turbinePowerW: number
+  compressorPowerW: number
+  frictionPowerW: number
 }
 
 /** Duty past a limit over which the closed loop's integral fades out (conditional integration, see evaluate). */
 export const INTEGRAL_FADE_DUTY = 0.02
 
+/**
+ * The closed loop integrates only within this of its target (fading to nothing at the band's edge), Pa: 2 psi. Boost
+ * controllers commonly hold the integral off until boost nears the target (common practice, no source).
+ */
+export const INTEGRAL_BAND_PA = 13_790
+
 /** The stiffness, C_d·A·√(R·T)/V, above which a chamber is treated as quasi-static (MODEL.md §4a), 1/s. */
 export const QUASI_STATIC_ABOVE_PER_S = 50
 
 const SOURCE_CODE: Record<SourceKind, number> = { intake: 0, ambient: 1, supply: 2, bleed: 3 }
+/** When a path is open: always, for the duty's share of the time (a switching valve's "on" path), or for the rest. */
+const SHARE_CODE: Record<DutyShare, number> = { always: 0, on: 1, off: 2 }
 
 interface ChamberModel {
   readonly name: 'top' | 'bottom'
   readonly index: number
   readonly sources: Int8Array
   readonly areas: Float64Array
-  readonly byDuty: Uint8Array
+  /** SHARE_CODE of each path. */
+  readonly shares: Uint8Array
   readonly sqrtRT: number
   readonly RT: number
   readonly flow: FlowFunction
@@ -118,18 +135,30 @@ export interface PullModel {
 const bad = (path: string, message: string) => new RangeError(`${path} ${message}`)
 
 /**
- * Pressure of a CO₂ bottle as its contents are drawn, for the time step: the saturation pressure while liquid
- * remains, else the pressure alone from co2.ts (the phase split and warning text of co2BottleState are for reports).
+ * Pressure of a CO₂ bottle as its contents are drawn, for the time step: the Span–Wagner bottle function of co2.ts
+ * (saturation pressure while liquid remains, the equation of state once one phase fills the bottle), held at a
+ * nanogram so that a bottle the pull has emptied reads as near-vacuum gas rather than an error.
  */
 function bottlePressureFunction(volumeM3: number, temperatureK: number): (massKg: number) => number {
-  const pressure = (m: number) => co2BottlePressurePa({ volumeM3, massKg: Math.max(m, 1e-9), temperatureK })
-  if (temperatureK < CO2_CRITICAL.temperatureK) {
-    const pSat = co2SaturationPressurePa(temperatureK)
-    const lightest = co2SaturatedVapourDensityKgM3(temperatureK) * volumeM3
-    const densest = co2SaturatedLiquidDensityKgM3(temperatureK) * volumeM3
-    return (m) => (m >= lightest && m <= densest ? pSat : pressure(m))
+  const pressure = co2BottlePressureFunction(volumeM3, temperatureK)
+  // A pull draws a gram or so from a kilogram bottle, a little at every evaluation: within a millionth of the mass
+  // of the last exact evaluation the pressure is taken on its tangent there, which differs from the equation of
+  // state by less than 1e-12 of the pressure and spares most evaluations of it (a supercritical bottle has no
+  // saturation plateau to fall back on).
+  let mRef = Number.NaN
+  let pRef = 0
+  let slope = 0
+  return (massKg) => {
+    const m = Math.max(massKg, 1e-9)
+    const dm = m - mRef
+    if (dm <= 1e-6 * mRef && dm >= -1e-6 * mRef) return pRef + slope * dm
+    mRef = m
+    pRef = pressure(m)
+    // Backward: a bottle filled to the densest liquid has no room for a forward step.
+    const h = 1e-7 * m
+    slope = (pRef - pressure(m - h)) / h
+    return pRef
   }
-  return pressure
 }
 
 export function buildPullModel(s: Scenario, options: PullModelOptions = {}): PullModel {
@@ -145,10 +174,13 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   const areas = wastegateAreas(w)
   const { seatForceN, rateNPerM } = springTotals(s.springs, areas)
   const xMax = w.maxLiftM
-  if (w.topChamberVolumeM3 <= areas.topM2 * xMax) {
+  // Chamber volumes with the valve shut, as entered or derived from the actuator (geometry.ts).
+  const volumes = chamberVolumes(w, areas)
+  // The schema refuses this; a scenario put together in code still gets a named error rather than a negative volume.
+  if (volumes.topM3 <= areas.topM2 * xMax) {
     throw bad(
       'wastegate.topChamberVolumeM3',
-      `must exceed the volume the piston sweeps at full lift (${(areas.topM2 * xMax * 1e6).toFixed(1)} cm³)`,
+      `must exceed the volume the piston sweeps at full lift (${((areas.topM2 * xMax) / 1e-6).toFixed(1)} cm³)`,
     )
   }
 
@@ -183,9 +215,16 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   const exhaustFactor = (gasE.gasConstant * tEm) / e.exhaustVolumeM3
   const turbineMode = x.mode === 'turbine'
   const ratio = x.ratio
+  // A drive-to-boost ratio measured over rpm (a back-pressure gauge's log), read in place of the single ratio.
+  const ratioKeys = x.ratioByRpm?.map((p) => p.rpm) ?? null
+  const ratioValues = x.ratioByRpm?.map((p) => p.ratio) ?? null
   const driveAtZeroPa = x.driveAtZeroBoostPa
   const backCoeff = x.backPressureCoefficientPaPerKg2S2
   const turbineArea = x.turbineAreaM2
+  // The turbine that must pass the exhaust: in turbine mode the scenario's; in ratio mode the one the ratio implies at
+  // the end of the pull (implied-turbine.ts), so that early in a pull, at low boost, the drive pressure is what the
+  // engine's own exhaust flow needs rather than the ratio times a boost that is not there yet (MODEL.md §4b, start).
+  const floorTurbineArea = turbineMode ? turbineArea : impliedTurbineAreaM2(s)
   const downstreamKind = x.downstream.kind
   const restrictedCoeff = x.downstream.kind === 'restricted' ? x.downstream.coefficientPaPerKg2S2 : 0
 
@@ -241,6 +280,9 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
           targetKeys: c.targetByRpm?.map((p) => p.rpm) ?? null,
           targetValues: c.targetByRpm?.map((p) => p.boostPa) ?? null,
           target: c.targetBoostPa,
+          // Feed-forward: the duty that cracks the valve at the target (balance.ts), as a controller's base duty.
+          base: dutyToCrackAt(s, c.targetBoostPa)!,
+          baseValues: c.targetByRpm?.map((p) => dutyToCrackAt(s, p.boostPa)!) ?? null,
         }
       : null
   if (loop && loop.dutyMax < loop.dutyMin) throw bad('control.dutyMax', 'must be at least control.dutyMin')
@@ -256,11 +298,12 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   // Chamber gas sits at ambient temperature (MODEL.md §4a).
   const tCh = tAmb
   const makeChamber = (name: 'top' | 'bottom'): Omit<ChamberModel, 'index'> & { quasi: boolean } => {
-    const conns = plumbing[name]
-    const onCo2 = supplyKind === 1 && conns.some((k) => k.source === 'supply')
-    const gas = onCo2 ? CO2_CHAMBER_GAS : AIR
+    const ports = plumbing[name]
+    const conns = ports.connections
+    const gas = chamberGas(s, conns)
     const sqrtRT = Math.sqrt(gas.gasConstant * tCh)
-    const volume0M3 = name === 'top' ? w.topChamberVolumeM3 : w.bottomChamberVolumeM3
+    // The line to the chamber (its hose) fills and empties with it.
+    const volume0M3 = (name === 'top' ? volumes.topM3 : volumes.bottomM3) + ports.lineVolumeM3
     const volumePerLift = name === 'top' ? -areas.topM2 : areas.bottomM2
     const smallest = name === 'top' ? volume0M3 - areas.topM2 * xMax : volume0M3
     const stiffnessPerS = (conns.reduce((sum, k) => sum + k.dischargeAreaM2, 0) * sqrtRT) / smallest
@@ -269,7 +312,7 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       name,
       sources: Int8Array.from(conns.map((k) => SOURCE_CODE[k.source])),
       areas: Float64Array.from(conns.map((k) => k.dischargeAreaM2)),
-      byDuty: Uint8Array.from(conns.map((k) => (k.byDuty ? 1 : 0))),
+      shares: Uint8Array.from(conns.map((k) => SHARE_CODE[k.share])),
       sqrtRT,
       RT: gas.gasConstant * tCh,
       flow: flowFunctionFor(gas.gamma),
@@ -316,14 +359,20 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   let chamberFlowIn = 0
   let chamberDraw = 0
 
+  /** C_d·A of a chamber's path i as open at this duty (a switching valve's time share applied). */
+  const openArea = (ch: ChamberModel, i: number, duty: number): number => {
+    const share = ch.shares[i]!
+    const a = ch.areas[i]!
+    return share === 0 ? a : share === 1 ? a * duty : a * (1 - duty)
+  }
+
   /** Net inflow into a chamber at pressure p (and the part drawn from the supply), into the scratch. */
   const chamberFlows = (ch: ChamberModel, p: number, duty: number) => {
     let sum = 0
     let draw = 0
     const n = ch.sources.length
     for (let i = 0; i < n; i++) {
-      const a = ch.byDuty[i] ? ch.areas[i]! * duty : ch.areas[i]!
-      const m = orificeFlowKgS(a, src[ch.sources[i]!]!, p, ch.sqrtRT, ch.flow)
+      const m = orificeFlowKgS(openArea(ch, i, duty), src[ch.sources[i]!]!, p, ch.sqrtRT, ch.flow)
       sum += m
       // A relieving regulator vents what flows back: only what leaves the supply is spent.
       if (ch.sources[i] === 2 && m > 0) draw += m
@@ -332,48 +381,23 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
     chamberDraw = draw
   }
 
-  /** Quasi-static chamber pressure: the pressure at which its orifice flows balance. */
-  const quasiStaticPressure = (ch: ChamberModel, duty: number): number => {
-    let lo = Infinity
-    let hi = -Infinity
-    let active = 0
-    let only = pAmb
+  /** Quasi-static chamber pressure: the steady divider shared with the static level (steady-chamber.ts). */
+  const pathAreas = new Float64Array(8)
+  const pathSources = new Float64Array(8)
+  const quasiStaticPressure = (ch: ChamberModel, duty: number, velocity: number): number => {
     const n = ch.sources.length
+    let open = 0
     for (let i = 0; i < n; i++) {
-      const a = ch.byDuty[i] ? ch.areas[i]! * duty : ch.areas[i]!
-      if (a <= 0) continue
-      const p = src[ch.sources[i]!]!
-      active++
-      only = p
-      if (p < lo) lo = p
-      if (p > hi) hi = p
+      pathAreas[i] = openArea(ch, i, duty)
+      pathSources[i] = src[ch.sources[i]!]!
+      if (pathAreas[i]! > 0) open++
     }
-    if (active <= 1 || hi - lo <= 1e-9 * hi) return active === 0 ? pAmb : only
-    // Illinois method on the bracket [lo, hi]; the net inflow falls as the chamber pressure rises.
-    let fLo = 0
-    chamberFlows(ch, lo, duty)
-    fLo = chamberFlowIn
-    chamberFlows(ch, hi, duty)
-    let fHi = chamberFlowIn
-    let side = 0
-    for (let i = 0; i < 60; i++) {
-      const p = (lo * fHi - hi * fLo) / (fHi - fLo)
-      chamberFlows(ch, p, duty)
-      const f = chamberFlowIn
-      if (f === 0 || hi - lo <= 1e-12 * hi) return p
-      if (f > 0) {
-        lo = p
-        fLo = f
-        if (side === 1) fHi *= 0.5
-        side = 1
-      } else {
-        hi = p
-        fHi = f
-        if (side === -1) fLo *= 0.5
-        side = -1
-      }
-    }
-    return 0.5 * (lo + hi)
+    // The air cushion (gas the moving piston pushes through the ports) is kept where one path is open: there it grows
+    // with the square of the speed, and stops a fast valve without slowing a slow one. Between two open paths it would
+    // be a linear damper stiff enough (a time constant under a millisecond) to hold an explicit step to that size, and
+    // the valve it damps follows its static balance anyway; there the divider alone gives the pressure.
+    const displaced = open === 1 ? (ch.volumePerLift * velocity) / ch.RT : 0
+    return steadyChamberPressurePa(pathAreas, pathSources, n, ch.sqrtRT, ch.flow, pAmb, displaced)
   }
 
   /** p_dn of a restricted dump: p = p_amb + K·ṁ_wg(p)², a few Newton steps from p_amb, kept in [p_amb, p_em]. */
@@ -390,11 +414,32 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
     return p
   }
 
+  /**
+   * The drive pressure at which the turbine (effective area A_t) and the gate together pass `flowKgS` to the turbine
+   * outlet `ptoPa` (the gate's far side taken at ambient, or at the turbine outlet when plumbed back). Most of a
+   * pull the ratio's drive pressure already passes the flow, and one check of it is all this costs.
+   */
+  const passedAt = (pem: number, gateArea: number, pto: number): number =>
+    (floorTurbineArea === Infinity ? Infinity : orificeFlowKgS(floorTurbineArea, pem, pto, sqrtRTe, flowE)) +
+    (gateArea > 0 ? orificeFlowKgS(gateArea, pem, downstreamKind === 'recirculated' ? pto : pAmb, sqrtRTe, flowE) : 0)
+  const driveToPass = (flowKgS: number, gateArea: number, ptoPa: number): number => {
+    let lo = ptoPa
+    let hi = lo * 1.05
+    while (passedAt(hi, gateArea, ptoPa) < flowKgS) {
+      lo = hi
+      hi *= 1.5
+      if (hi > 1e8) return hi
+    }
+    // Flow rises monotonically with the drive pressure: a bracketed root, to 1e-10 relative.
+    const excess = (p: number) => passedAt(p, gateArea, ptoPa) - flowKgS
+    return bracketedRoot(excess, lo, hi, excess(lo), excess(hi), 1e-10, 60)
+  }
+
   const out: PullOutputs = {
     rpm: 0, boostPa: 0, drivePa: 0, turbineOutletPa: 0, downstreamPa: 0, topPa: 0, bottomPa: 0, supplySourcePa: 0,
     supplyDeliveredPa: 0, duty: 0, liftM: 0, shaftSpeedRadS: 0, netForceN: 0, compressorFlowKgS: 0, engineFlowKgS: 0,
     exhaustFlowKgS: 0, wastegateFlowKgS: 0, turbineFlowKgS: 0, zeroFlowMargin: 0, supplyDrawKgS: 0,
-    compressorFlowToTankKgS: 0, targetBoostPa: 0,
+    compressorFlowToTankKgS: 0, targetBoostPa: 0, turbinePowerW: 0, compressorPowerW: 0, frictionPowerW: 0,
   }
 
   /**
@@ -435,15 +480,18 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
     let pem: number
     let pto: number
     let pdn: number
-    let mwg: number
-    let mt: number
+    let mwg = 0
+    let mt = 0
     let dpem = 0
     if (!turbineMode) {
       const boost = pim - pAmb
       // §4a: drive pressure never below the turbine outlet (taken at the whole exhaust flow), so the shaft is never driven backwards.
+      const r = ratioKeys === null ? ratio : interpolateTable(ratioKeys, ratioValues!, rpm)
       const floor = pAmb + backCoeff * mexh * mexh
-      pem = pAmb + ratio * (boost > 0 ? boost : 0) + driveAtZeroPa
-      if (pem < floor) pem = floor
+      pem = pAmb + r * (boost > 0 ? boost : 0) + driveAtZeroPa
+      // §4b: nor below what the exhaust flow needs to pass the turbine the ratio implies and the open gate. At low
+      // boost this, not the ratio, sets the drive pressure, so a pull spools from the engine's own exhaust flow.
+      if (passedAt(pem, gateArea, floor) < mexh) pem = driveToPass(mexh, gateArea, floor)
       pdn = downstreamKind === 'vented' ? pAmb : downstreamKind === 'recirculated' ? floor : gateArea > 0 ? restrictedDownstream(gateArea, pem) : pAmb
       mwg = orificeFlowKgS(gateArea, pem, pdn, sqrtRTe, flowE)
       mt = mexh - mwg
@@ -451,18 +499,29 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       pto = downstreamKind === 'recirculated' ? floor : pAmb + backCoeff * mt * mt
     } else {
       pem = y[exhaustI]!
-      // p_to = p_amb + K_ex·ṁ², with ṁ the turbine flow (plus the gate's when it is plumbed back): a few fixed-point steps.
-      pto = pAmb + backCoeff * mexh * mexh
-      mt = 0
-      mwg = 0
-      pdn = pAmb
-      for (let i = 0; i < 3; i++) {
-        mt = orificeFlowKgS(turbineArea, pem, pto, sqrtRTe, flowE)
-        pdn = downstreamKind === 'vented' ? pAmb : downstreamKind === 'recirculated' ? pto : gateArea > 0 ? restrictedDownstream(gateArea, pem) : pAmb
-        mwg = orificeFlowKgS(gateArea, pem, pdn, sqrtRTe, flowE)
-        const through = downstreamKind === 'recirculated' ? mt + mwg : mt
-        pto = pAmb + backCoeff * through * through
+      // p_to = p_amb + K_ex·ṁ², with ṁ the turbine flow (plus the gate's when it is plumbed back). The excess
+      // g(p_to) = p_to − p_amb − K_ex·ṁ(p_to)² rises from g(p_amb) ≤ 0 to g(p_em) ≥ 0 (no flow once p_to reaches
+      // p_em), so its root is bracketed: Illinois on [p_amb, p_em], which a fixed-point iteration is not for a
+      // large K_ex and turbine.
+      pdn = downstreamKind === 'restricted' && gateArea > 0 ? restrictedDownstream(gateArea, pem) : pAmb
+      const recirculated = downstreamKind === 'recirculated'
+      const excess = (p: number): number => {
+        mt = orificeFlowKgS(turbineArea, pem, p, sqrtRTe, flowE)
+        mwg = recirculated ? orificeFlowKgS(gateArea, pem, p, sqrtRTe, flowE) : mwg
+        const through = recirculated ? mt + mwg : mt
+        return p - pAmb - backCoeff * through * through
       }
+      mwg = recirculated ? 0 : orificeFlowKgS(gateArea, pem, pdn, sqrtRTe, flowE)
+      if (pem <= pAmb || backCoeff === 0) {
+        pto = pAmb
+        excess(pto)
+      } else {
+        const fLo = excess(pAmb)
+        pto = fLo < 0 ? bracketedRoot(excess, pAmb, pem, fLo, pem - pAmb, 1e-12, 80) : pAmb
+        // The flows at the answer, for what follows.
+        excess(pto)
+      }
+      if (recirculated) pdn = pto
       dpem = exhaustFactor * (mexh - mt - mwg)
     }
     const pt = mt > 0 && pem > pto ? mt * turbinePowerFactor * (1 - Math.exp(expE * Math.log(pto / pem))) : 0
@@ -493,7 +552,8 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
     if (loop !== null) {
       target = loop.targetKeys === null ? loop.target : interpolateTable(loop.targetKeys, loop.targetValues!, rpm)
       const err = target - (pim - pAmb)
-      const raw = loop.kp * err + loop.ki * y[integralI]! - loop.kd * dpim
+      const base = loop.targetKeys === null ? loop.base : interpolateTable(loop.targetKeys, loop.baseValues!, rpm)
+      const raw = base + loop.kp * err + loop.ki * y[integralI]! - loop.kd * dpim
       duty = raw < loop.dutyMin ? loop.dutyMin : raw > loop.dutyMax ? loop.dutyMax : raw
       // Anti-windup by conditional integration: the integral stops while the command is past a duty limit. While the
       // turbo spools the solenoid sits at its limit with the error large for a second or more; back-calculation would
@@ -501,7 +561,11 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       // INTEGRAL_FADE_DUTY keeps the right-hand side continuous, which the step-size control needs.
       const beyond = raw - duty
       const fade = 1 - (beyond < 0 ? -beyond : beyond) / INTEGRAL_FADE_DUTY
-      dI = fade > 0 ? err * fade : 0
+      // …and only near the target: with the base duty doing the bulk, the integral trims what the base misses, and
+      // integrating the whole climb to the target would wind it up however the limits are handled.
+      const magnitude = err < 0 ? -err : err
+      const near = 1 - magnitude / INTEGRAL_BAND_PA
+      dI = fade > 0 && near > 0 ? err * fade * near : 0
     }
 
     // Chambers.
@@ -519,10 +583,11 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
         dy[top.index] = (top.RT * chamberFlowIn - pTop * top.volumePerLift * vel) / vol
       }
     } else {
-      pTop = quasiStaticPressure(top, duty)
+      pTop = quasiStaticPressure(top, duty, vel)
       chamberFlows(top, pTop, duty)
     }
-    if (top.drawsSupply) draw += chamberDraw
+    // Every gate has its own chambers and hoses at the same pressures: the supply feeds them all.
+    if (top.drawsSupply) draw += gateCount * chamberDraw
     let pBot: number
     if (bottom.index >= 0 && !quasiStatic) {
       pBot = y[bottom.index]!
@@ -532,10 +597,10 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
         dy[bottom.index] = (bottom.RT * chamberFlowIn - pBot * bottom.volumePerLift * vel) / vol
       }
     } else {
-      pBot = quasiStaticPressure(bottom, duty)
+      pBot = quasiStaticPressure(bottom, duty, vel)
       chamberFlows(bottom, pBot, duty)
     }
-    if (bottom.drawsSupply) draw += chamberDraw
+    if (bottom.drawsSupply) draw += gateCount * chamberDraw
 
     // Force on the valve, positive opens (MODEL.md §2).
     const force =
@@ -593,6 +658,9 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
     out.supplyDrawKgS = draw
     out.compressorFlowToTankKgS = toTank
     out.targetBoostPa = target
+    out.turbinePowerW = pt
+    out.compressorPowerW = pc
+    out.frictionPowerW = friction * omega * omega
   }
 
   /** Net force with the valve at lift `liftM` and the rest of the state as given. */
@@ -718,7 +786,8 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
         if (!ch.drawsSupply) continue
         kg += ((gauge + pAmb) * (ch.volume0M3 + ch.volumePerLift * out.liftM)) / ch.RT
       }
-      return kg
+      // The same in every gate.
+      return kg * gateCount
     },
   }
 }

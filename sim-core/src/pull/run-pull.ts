@@ -7,6 +7,7 @@ import type { Scenario } from '../scenario.ts'
 import { integrateHybrid, type IntegratorChoice } from './hybrid-integrator.ts'
 import { pullMetrics, type PullRecord, type SupplyFigures } from './pull-metrics.ts'
 import { buildPullModel, type ChamberTreatment, type PullMode } from './pull-model.ts'
+import { pullNotes } from './pull-notes.ts'
 import type { PullResult, PullSeries } from './pull-result.ts'
 import { backToBackPulls, co2PullsPerBottle } from './supply-endurance.ts'
 
@@ -20,14 +21,14 @@ export interface RunPullOptions {
 }
 
 /**
- * The compressor's maximum flow at ambient over the engine's air flow at the start of a pull, for the default
- * starting shaft speed. In ratio mode the turbine does no work at zero boost (drive pressure then sits at the
- * turbine outlet, MODEL.md §4a), so a pull has to start with the compressor a little ahead of the engine — as a
- * turbo is when the throttle opens — or it never spools.
+ * Where a pull starts (MODEL.md §4b): the throttle has just opened at the start rpm, the manifold is at ambient,
+ * and the shaft turns at the speed where the compressor, at zero boost, delivers just what the engine draws — a
+ * state defined by the engine and the compressor alone, with no guessed starting speed. From there the engine's own
+ * exhaust flow, forced through the turbine (the drive pressure it needs, pull-model.ts), spools the shaft.
  */
-export const START_FLOW_MARGIN = 1.5
+export const START_FLOW_MARGIN = 1
 
-/** The starting shaft speed of a pull: `turbo.initialSpeedRadS`, or where the compressor leads the engine by START_FLOW_MARGIN. */
+/** The starting shaft speed of a pull: `turbo.initialSpeedRadS` when given, else where the compressor just feeds the engine. */
 export function initialShaftSpeedRadS(s: Scenario): number {
   if (s.turbo.initialSpeedRadS !== undefined) return Math.max(s.turbo.initialSpeedRadS, s.turbo.idleSpeedRadS)
   const e = s.engine
@@ -135,6 +136,7 @@ export function runPull(s: Scenario, options: RunPullOptions = {}): PullResult {
   const notes = [BOOST_CAUTION]
   if (s.exhaust.mode === 'ratio') notes.unshift(RATIO_MODE_NOTE)
   if (s.supply.kind !== 'boost') notes.push(GAS_CAUTION)
+  notes.push(...pullNotes(s, series, metrics))
   if (s.supply.kind === 'co2') {
     const bottle = co2BottleState({ volumeM3: s.supply.bottleVolumeM3, massKg: s.supply.fillMassKg, temperatureK: s.supply.bottleTemperatureK })
     if (bottle.warning) notes.push(bottle.warning)

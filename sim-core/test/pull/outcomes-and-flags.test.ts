@@ -24,9 +24,14 @@ describe('outcomes and bad configuration', () => {
   })
 
   it('throws for configuration that cannot be run, naming the field or option', () => {
-    const tooSmall = scenarioWith({ wastegate: { ...base.wastegate, topChamberVolumeM3: 20e-6 } })
+    // The schema refuses a top chamber smaller than the piston sweeps (test/scenario.test.ts); one put together in code
+    // still gets a named error.
+    const tooSmall: Scenario = { ...base, wastegate: { ...base.wastegate, topChamberVolumeM3: 20e-6 } }
     expect(() => runPull(tooSmall)).toThrow(/wastegate\.topChamberVolumeM3/)
-    const cutOut = scenarioWith({ control: { kind: 'both' }, supply: { kind: 'compressor', regulatorSetpointPa: psi(10), cutInPa: 900_000, cutOutPa: 800_000 } })
+    // The schema refuses a cut-out below the cut-in (test/scenario.test.ts); put together in code, the pull names it.
+    const onTank = scenarioWith({ control: { kind: 'both' }, supply: { kind: 'compressor', regulatorSetpointPa: psi(10) } })
+    if (onTank.supply.kind !== 'compressor') throw new Error('a compressor supply expected')
+    const cutOut: Scenario = { ...onTank, supply: { ...onTank.supply, cutInPa: 900_000, cutOutPa: 800_000 } }
     expect(() => runPull(cutOut)).toThrow(/supply\.cutOutPa/)
     // The schema refuses a fill this dense (test/scenario.test.ts); a scenario put together in code still gets a named error.
     const onCo2 = scenarioWith({ control: { kind: 'both' }, supply: co2Supply(10) })
@@ -136,3 +141,34 @@ describe('flags from a recorded pull', () => {
     expect(pullMetrics(base, record(() => undefined), { pullsPerSupply: null, keepsUp: false, holdPa: null }).metrics.creepPa).toBeNull()
   })
 })
+
+describe('notes a tuner reads (MODEL.md §4b)', () => {
+  const noteOf = (r: { notes: string[] }, start: string) => r.notes.find((n) => n.startsWith(start))
+
+  it('says nothing beyond the cautions for the default scenario', () => {
+    const r = runPull(base)
+    for (const start of ['Port lag', 'Boost peaked', 'The boost target', 'Creep']) expect(noteOf(r, start)).toBeUndefined()
+  })
+
+  it('names port lag when chambers that trail their ports crack the gate late, and the overshoot that follows', () => {
+    // A 20 psi CO₂ top chamber for a 12 psi target: it must vent through the solenoid before the gate can crack.
+    const r = runPull(scenarioWith({ control: { kind: 'closed-loop', targetBoostPa: psi(12) }, supply: co2Supply(20) }))
+    expect(noteOf(r, 'Port lag')).toMatch(/above the static crack/)
+    expect(noteOf(r, 'Boost peaked')).toMatch(/over the 12\.0 psi \(83 kPa\) target/)
+  })
+
+  it('says when a closed loop’s target lies below what the gate holds at either duty limit', () => {
+    const r = runPull(scenarioWith({ control: { kind: 'closed-loop', targetBoostPa: psi(5) } }))
+    expect(noteOf(r, 'The boost target')).toMatch(/below the .* the gate holds at either duty limit/)
+    // An unreachable target is the note; the overshoot past it is not a second one.
+    expect(noteOf(r, 'Boost peaked')).toBeUndefined()
+  })
+
+  it('names creep when boost keeps rising with the gate on its full-lift stop', () => {
+    const small: Scenario = { ...base, wastegate: { ...base.wastegate, valveDiameterM: 0.02, maxLiftM: 0.004 } }
+    const r = runPull(small)
+    expect(r.metrics.creepPa!).toBeGreaterThan(psi(0.5))
+    expect(noteOf(r, 'Creep')).toMatch(/full-lift stop/)
+  })
+})
+

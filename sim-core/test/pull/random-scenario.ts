@@ -163,7 +163,7 @@ export function randomScenarioInput(next: () => number, shape: CaseShape): Scena
     maxLiftM,
     movingMassKg: r.uniform(0.1, 0.4),
     dampingRatio: r.uniform(0.2, 0.5),
-    portDiameterM: r.uniform(0.8, 5) * MM,
+    portDiameterM: r.uniform(1.5, 5) * MM,
   }
   // Now and then a gate whose shaft passes differently: net areas within 10 % of the plain ones.
   if (r.chance(0.1)) {
@@ -190,7 +190,7 @@ export function randomScenarioInput(next: () => number, shape: CaseShape): Scena
       : { from: 'bench' as const, benchCrackPressurePa: share * benchTotalPa, rateNPerM: share * rateTotalNPerM },
   )
 
-  const solenoid = () => ({ solenoidDiameterM: r.uniform(1, 3) * MM, restrictorDiameterM: r.uniform(0.8, 2) * MM })
+  const solenoid = () => ({ solenoidDiameterM: r.uniform(1, 3) * MM })
   const controlFor = (family: Family): ScenarioInput['control'] => {
     switch (family) {
       case 'none':
@@ -222,6 +222,15 @@ export function randomScenarioInput(next: () => number, shape: CaseShape): Scena
     }
   }
   const control = controlFor(shape.family)
+
+  // Boost lines: hose of 3–6 mm bore and 0.2–2 m, and now and then a restrictor in the line (a bleed jet or a
+  // damping orifice, 0.8–2 mm), as shops plumb them.
+  const line = () => {
+    const l: NonNullable<NonNullable<ScenarioInput['plumbing']>['top']> = { boreM: r.uniform(3, 6) * MM, lengthM: r.uniform(0.2, 2) }
+    if (r.chance(0.2)) l.restrictorDiameterM = r.uniform(0.8, 2) * MM
+    return l
+  }
+  const plumbing: ScenarioInput['plumbing'] = r.chance(0.7) ? { top: line(), bottom: line() } : {}
 
   const setpointPa = r.uniform(0, 30) * PSI
   const supplyFor = (kind: Supply): ScenarioInput['supply'] => {
@@ -272,6 +281,14 @@ export function randomScenarioInput(next: () => number, shape: CaseShape): Scena
     // Effective turbine area grows with the engine's flow.
     turbineAreaM2: 4e-4 * litres * r.uniform(0.7, 1.4),
   }
+  // Now and then a ratio that changes with rpm, as a measured drive pressure would (ratio mode reads it).
+  if (r.chance(0.2)) {
+    const points = r.int(2, 4)
+    exhaust.ratioByRpm = Array.from({ length: points }, (_, i) => ({
+      rpm: Math.round(rpmStart + ((rpmEnd - rpmStart) * i) / (points - 1)),
+      ratio: r.uniform(1.0, 2.2),
+    }))
+  }
 
   const input: ScenarioInput = {
     ambient: { pressurePa: r.uniform(80_000, 102_000), temperatureK: r.uniform(263, 318) },
@@ -280,6 +297,7 @@ export function randomScenarioInput(next: () => number, shape: CaseShape): Scena
     wastegate,
     springs,
     control,
+    plumbing,
     supply,
     exhaust,
     // A step budget well above what the slowest pull that finishes needs (about 6,200 steps for 6 s in turbine

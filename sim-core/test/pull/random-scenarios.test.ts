@@ -1,5 +1,6 @@
 import { afterAll, describe, expect, it } from 'vitest'
-import { computeBalance, runPull, type HybridOutcome, type PullResult } from '../../src/index.ts'
+import { staticChambers } from '../../src/balance.ts'
+import { computeBalance, runPull, wastegateAreas, type HybridOutcome, type PullResult, type Scenario } from '../../src/index.ts'
 import { toPsi } from './pull-helpers.ts'
 import {
   DOWNSTREAMS,
@@ -16,15 +17,21 @@ import {
  * Hundreds of seeded random scenarios over every control arrangement, supply, downstream and exhaust mode, each
  * run through the static balance and a whole pull. What must hold for every one of them: nothing throws (a
  * scenario the model cannot run comes back as a result with an outcome), every series value is finite, the
- * outcome is a documented one, and a settled pull meets the static balance at its settled lift within 0.01 psi
- * (MODEL.md §7). A failing case is named by family, index and seed; `scenarioAt(SEED, index)` rebuilds it alone,
+ * outcome is a documented one, and a pull that has come to rest meets the static balance at its settled lift within
+ * 0.05 psi (MODEL.md §4b: one compressible divider for both levels, so the live number and a settled pull agree).
+ * "Come to rest" is judged from the pull's own window (steadyWindow below): a pull whose chambers still fill or whose
+ * valve still creeps open is not compared, only counted, since there the difference is the chambers' real lag. A failing case is named by family, index and seed; `scenarioAt(SEED, index)` rebuilds it alone,
  * and the failure message carries its scenario JSON for `npm run sim -- pull`.
  */
 
 const SEED = 20261205
 const COUNT = 500
-/** MODEL.md §7: a settled pull against the static balance at its settled lift. */
-const SETTLED_VS_STATIC_PSI = 0.01
+/** MODEL.md §4b: a settled pull against the static balance at its settled lift. */
+const SETTLED_VS_STATIC_PSI = 0.05
+/** A window at rest: its chambers' lag behind their steady divider pressures is worth less than this in boost, psi. */
+const REST_CHAMBER_LAG_PSI = 0.02
+/** At least this share of the settled pulls must be at rest, so the comparison can never quietly compare nothing. */
+const AT_REST_SHARE_MIN = 0.5
 
 /** The outcomes a pull documents (README, Integration): finishing, running out of steps, or of events. */
 const DOCUMENTED_OUTCOMES: Record<HybridOutcome, string> = {
@@ -42,6 +49,8 @@ interface CaseRecord {
   result: PullResult | null
   /** Settled minus static at the settled lift, psi (settled pulls with a static answer). */
   settledMinusStaticPsi: number | null
+  /** Why a settled pull's window is not at rest, or null when it is (or the pull did not settle). */
+  notAtRest: string | null
   /** Pull crack minus static crack, psi (when both exist). */
   crackMinusStaticPsi: number | null
 }
@@ -51,6 +60,30 @@ const errorText = (error: unknown) => (error instanceof Error ? `${error.name}: 
 const reproduce = (c: GeneratedScenario) =>
   `rebuild with scenarioAt(${c.seed}, ${c.index}); scenario JSON:\n${JSON.stringify(c.input)}`
 const isSettled = (r: PullResult) => !r.flags.notSettled && r.metrics.settledBoostPa !== null
+
+/**
+ * Whether a settled pull's window is at rest: its chambers have caught up with their steady divider pressures. A
+ * chamber still filling through a small solenoid or a long line, or squeezed by a valve still creeping open, trails
+ * its divider; that lag is real, and the settled boost differs from the static balance by what it is worth in force.
+ * Measured as that force over the window (the mean signed lag of each chamber times its area) expressed as boost
+ * (over the drive ratio seen times the valve area). Returns the reason it is not at rest, or null.
+ */
+function steadyWindow(s: Scenario, r: PullResult): string | null {
+  const from = r.metrics.crackTimeS! + s.solver.settlingDelayS
+  const idx = r.series.timeS.flatMap((t, i) => (t >= from ? [i] : []))
+  let top = 0
+  let bottom = 0
+  for (const i of idx) {
+    const steady = staticChambers(s, { duty: r.series.duty[i]!, suppliedPa: r.series.regulatedPa[i]! }).at(r.series.boostPa[i]!)
+    top += r.series.topPa[i]! - steady.topPa
+    bottom += r.series.bottomPa[i]! - steady.bottomPa
+  }
+  const n = Math.max(idx.length, 1)
+  const a = wastegateAreas(s.wastegate)
+  const ratio = Math.max(r.metrics.driveRatioSeen ?? s.exhaust.ratio, 0.5)
+  const lag = toPsi(Math.abs((top / n) * a.topM2 - (bottom / n) * a.bottomM2) / (ratio * a.valveM2))
+  return lag > REST_CHAMBER_LAG_PSI ? `the chambers trail their steady pressures by # psi of boost (${lag.toFixed(3)})` : null
+}
 
 function runCase(c: GeneratedScenario): CaseRecord {
   const started = performance.now()
@@ -71,6 +104,7 @@ function runCase(c: GeneratedScenario): CaseRecord {
     ms,
     thrown,
     result,
+    notAtRest: result && isSettled(result) ? steadyWindow(c.scenario, result) : null,
     settledMinusStaticPsi:
       result && isSettled(result) && m?.staticBoostAtSettledLiftPa != null && m.settledBoostPa !== null
         ? toPsi(m.settledBoostPa - m.staticBoostAtSettledLiftPa)
@@ -99,7 +133,7 @@ describe(`random scenarios (seed ${SEED}, ${COUNT} cases)`, () => {
           expect(Object.keys(DOCUMENTED_OUTCOMES), `outcome\n${reproduce(c)}`).toContain(r.stats.outcome)
           expect(nonFiniteSeries(r), `series with values that are not finite\n${reproduce(c)}`).toEqual([])
           expect(Number.isFinite(r.stats.reachedS), `time reached is ${r.stats.reachedS}\n${reproduce(c)}`).toBe(true)
-          if (!isSettled(r)) return
+          if (!isSettled(r) || rec.notAtRest !== null) return
           const m = r.metrics
           expect(
             m.staticBoostAtSettledLiftPa,
@@ -111,7 +145,7 @@ describe(`random scenarios (seed ${SEED}, ${COUNT} cases)`, () => {
             Math.abs(delta),
             `settled ${toPsi(m.settledBoostPa!).toFixed(3)} psi against ${toPsi(m.staticBoostAtSettledLiftPa!).toFixed(3)} psi ` +
               `static at the settled lift (${(m.settledLiftM! * 1000).toFixed(3)} of ${(c.scenario.wastegate.maxLiftM * 1000).toFixed(3)} mm), ` +
-              `off by ${delta.toFixed(4)} psi; MODEL.md §7 allows ${SETTLED_VS_STATIC_PSI}\n${reproduce(c)}`,
+              `off by ${delta.toFixed(4)} psi; MODEL.md §4b allows ${SETTLED_VS_STATIC_PSI}\n${reproduce(c)}`,
           ).toBeLessThanOrEqual(SETTLED_VS_STATIC_PSI)
         })
       }
@@ -120,6 +154,14 @@ describe(`random scenarios (seed ${SEED}, ${COUNT} cases)`, () => {
 
   afterAll(() => {
     if (records.size > 0) console.log(summary([...records.values()].sort((a, b) => a.c.index - b.c.index)))
+  })
+
+  it(`compares at least ${AT_REST_SHARE_MIN * 100} % of the settled pulls with the static balance (their windows are at rest)`, () => {
+    const settled = [...records.values()].filter((r) => r.result !== null && isSettled(r.result))
+    // Only meaningful after the cases above ran (the whole file, as CI runs it).
+    expect(settled.length).toBeGreaterThan(COUNT / 10)
+    const atRest = settled.filter((r) => r.notAtRest === null)
+    expect(atRest.length / settled.length).toBeGreaterThanOrEqual(AT_REST_SHARE_MIN)
   })
 })
 
@@ -194,10 +236,11 @@ function summary(rows: readonly CaseRecord[]): string {
   const byFamily = FAMILIES.map((family: Family) => {
     const mine = rows.filter((r) => r.c.shape.family === family)
     const mineSettled = mine.filter((r) => r.result !== null && isSettled(r.result))
-    const within = mineSettled.filter((r) => r.settledMinusStaticPsi !== null && Math.abs(r.settledMinusStaticPsi) <= SETTLED_VS_STATIC_PSI)
+    const atRest = mineSettled.filter((r) => r.notAtRest === null)
+    const within = atRest.filter((r) => r.settledMinusStaticPsi !== null && Math.abs(r.settledMinusStaticPsi) <= SETTLED_VS_STATIC_PSI)
     return `  ${family.padEnd(22)}${String(mine.length).padStart(5)}${String(mine.filter((r) => r.thrown).length).padStart(7)}` +
       `${String(mine.filter((r) => r.result && r.result.stats.outcome !== 'converged').length).padStart(9)}` +
-      `${String(mineSettled.length).padStart(9)}${String(within.length).padStart(10)}`
+      `${String(mineSettled.length).padStart(9)}${String(atRest.length).padStart(9)}${String(within.length).padStart(10)}`
   })
   return [
     `Random scenarios, seed ${SEED}: ${rows.length} cases run, ${refused} draws refused by the schema and drawn again`,
@@ -207,7 +250,11 @@ function summary(rows: readonly CaseRecord[]): string {
       `open at start ${openAtStart}; flagged notSettled ${flag('notSettled')}; held open by drive ${flag('heldOpenByDrive')}; ` +
       `past the zero-flow line ${flag('pastZeroFlowLine')}`,
     `  |difference|, psi                     n   median      p95    worst`,
-    distributionLine('settled − static at settled lift', rows, (r) => r.settledMinusStaticPsi, SETTLED_VS_STATIC_PSI),
+    distributionLine('settled − static, window at rest', rows.filter((r) => r.notAtRest === null), (r) => r.settledMinusStaticPsi, SETTLED_VS_STATIC_PSI),
+    distributionLine('settled − static, not at rest', rows.filter((r) => r.notAtRest !== null), (r) => r.settledMinusStaticPsi, SETTLED_VS_STATIC_PSI),
+    `  settled but not at rest: ${[...new Set(rows.flatMap((r) => (r.notAtRest === null ? [] : [r.notAtRest.replace(/ \(.*\)$/, '')])))]
+      .map((kind) => `${rows.filter((r) => r.notAtRest?.replace(/ \(.*\)$/, '') === kind).length}× ${kind}`)
+      .join('; ')}`,
     // Only counted, not asserted: the contract names no bound; 0.5 psi is what the arrangement tests allow. Turbine
     // mode apart: its static crack is at the scenario's ratio, the pull's at the ratio the turbine makes.
     ...EXHAUST_MODES.map((mode) =>
@@ -215,7 +262,7 @@ function summary(rows: readonly CaseRecord[]): string {
     ),
     `  time: ${(totalMs / 1000).toFixed(1)} s for balance and pull of every case; slowest ${(slowest.ms / 1000).toFixed(2)} s ` +
       `(#${slowest.c.index} ${slowest.c.shape.family}, ${slowest.result?.stats.outcome ?? 'threw'})`,
-    `  family                 cases  threw  stopped  settled  within ${SETTLED_VS_STATIC_PSI}`,
+    `  family                 cases  threw  stopped  settled  at rest  within ${SETTLED_VS_STATIC_PSI}`,
     ...byFamily,
   ].join('\n')
 }

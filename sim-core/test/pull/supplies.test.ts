@@ -4,7 +4,7 @@ import {
   co2BottleState,
   co2MinimumUsableMassKg,
   co2PullsPerBottle,
-  co2SaturationPressurePa,
+  co2EosSaturation,
   runPull,
   type TankCycle,
 } from '../../src/index.ts'
@@ -19,9 +19,11 @@ const bleedingSolenoid = { kind: 'solenoid-3port', chamber: 'top', duty: 0.8 }
 
 describe('CO₂ bottle supply', () => {
   const r = topOnSupply(co2Supply(10))
+  /** The default bottle: a 5 lb bottle's water volume and its normal fill (scenario.ts). */
+  const bottle = scenarioWith({ supply: co2Supply(10) }).supply as { bottleVolumeM3: number; fillMassKg: number }
 
   it('holds the bottle at the saturation pressure while liquid remains (Span & Wagner, via co2.ts)', () => {
-    const pSat = co2SaturationPressurePa(298.15) - 101_325
+    const pSat = co2EosSaturation(298.15).pressurePa - 101_325
     for (const p of r.series.supplyPa) expectClose(p, pSat, 1e-6, 'bottle gauge pressure')
     expect(r.series.regulatedPa.every((p) => Math.abs(p - psi(10)) < 1e-6)).toBe(true)
     expect(r.flags.supplyBelowSetpoint).toBe(false)
@@ -30,10 +32,12 @@ describe('CO₂ bottle supply', () => {
   it('spends gas and counts the pulls a full bottle gives', () => {
     const gas = r.metrics.gasUsedPerPullKg!
     expect(gas).toBeGreaterThan(0)
-    const minimum = co2MinimumUsableMassKg({ volumeM3: 0.0046, fillMassKg: 2.27, temperatureK: 298.15 }, 101_325 + psi(10) + 20_000)
-    expect(r.metrics.pullsPerSupply).toBe(Math.floor((2.27 - minimum) / gas))
+    const minimum = co2MinimumUsableMassKg({ volumeM3: bottle.bottleVolumeM3, fillMassKg: bottle.fillMassKg, temperatureK: 298.15 }, 101_325 + psi(10) + 20_000)
+    expect(r.metrics.pullsPerSupply).toBe(Math.floor((bottle.fillMassKg - minimum) / gas))
     const bleeding = topOnSupply(co2Supply(10), bleedingSolenoid)
-    expect(bleeding.metrics.gasUsedPerPullKg!).toBeGreaterThan(10 * gas)
+    // A sealed top chamber takes only its own fill; a switching valve at 80 % duty also passes gas to its vent for
+    // the fifth of each cycle it vents, all pull long: several times the fill.
+    expect(bleeding.metrics.gasUsedPerPullKg!).toBeGreaterThan(3 * gas)
     expect(bleeding.metrics.pullsPerSupply!).toBeLessThan(r.metrics.pullsPerSupply!)
   })
 
@@ -47,8 +51,28 @@ describe('CO₂ bottle supply', () => {
   it('warns about a bottle above the critical temperature', () => {
     const hot = topOnSupply(co2Supply(10, { bottleTemperatureK: 313.15 }))
     expect(hot.notes.join(' ')).toMatch(/critical temperature/)
-    const state = co2BottleState({ volumeM3: 0.0046, massKg: 2.27, temperatureK: 313.15 })
+    const state = co2BottleState({ volumeM3: bottle.bottleVolumeM3, massKg: bottle.fillMassKg, temperatureK: 313.15 })
     expectClose(hot.series.supplyPa[0]!, state.pressurePa - 101_325, 1e-3, 'supercritical bottle, Pa')
+  })
+})
+
+describe('gas per pull and the number of gates', () => {
+  // Every gate has its own chambers and hoses at the same pressures, so the supply feeds each of them.
+  const gasWith = (count: number, control: Record<string, unknown>) => {
+    const s = scenarioWith({ control, supply: co2Supply(10) })
+    return runPull({ ...s, wastegate: { ...s.wastegate, count } }).metrics.gasUsedPerPullKg!
+  }
+
+  it('a solenoid passing CO₂ to its vent spends it in proportion to the gates it feeds', () => {
+    const one = gasWith(1, bleedingSolenoid)
+    for (const count of [2, 4]) expect(gasWith(count, bleedingSolenoid) / one, `${count} gates over 1`).toBeCloseTo(count, 0)
+    expect(Math.abs(gasWith(2, bleedingSolenoid) / one / 2 - 1)).toBeLessThan(0.1)
+  })
+
+  it('sealed top chambers on more gates take more gas, never less', () => {
+    const [one, two, four] = [1, 2, 4].map((count) => gasWith(count, { kind: 'both' }))
+    expect(two).toBeGreaterThan(one!)
+    expect(four).toBeGreaterThan(two!)
   })
 })
 

@@ -1,0 +1,43 @@
+import { computeBalance } from '../balance.ts'
+import { fourStrokeAirFlowKgS, interpolateTable } from '../engine.ts'
+import { AIR } from '../gas.ts'
+import { flowFunction, flowFunctionFor } from '../orifice.ts'
+import type { Scenario } from '../scenario.ts'
+import { exhaustGas } from './gases.ts'
+
+/** Boost at which the implied turbine is sized when boost never opens the valve: 1 bar. */
+const SIZING_BOOST_WITHOUT_CRACK_PA = 100_000
+
+/**
+ * The turbine a ratio-mode pull implies (MODEL.md §4b): the effective flow area that passes the engine's whole
+ * exhaust flow at the end rpm with the drive pressure the ratio gives at the static crack boost. In ratio mode the
+ * drive pressure is never below what this turbine needs to pass the exhaust flow: at low boost that, not the ratio,
+ * sets the drive pressure, so a pull spools from the engine's own exhaust flow and no guessed start speed or drive
+ * pressure at zero boost matters. At the crack, at any rpm up to the end, the ratio's drive pressure is at least
+ * that need, so the pull cracks where the static balance says. Infinite (no such floor) when the ratio's drive
+ * pressure does not exceed the turbine outlet.
+ */
+export function impliedTurbineAreaM2(s: Scenario): number {
+  const e = s.engine
+  const x = s.exhaust
+  const crack = computeBalance(s).crack
+  const boostPa = crack.status === 'opens' ? Math.max(crack.boostPa, 0) : SIZING_BOOST_WITHOUT_CRACK_PA
+  const pAmb = s.ambient.pressurePa
+  const pim = pAmb + boostPa
+  const ve = e.volumetricEfficiencyByRpm
+    ? interpolateTable(e.volumetricEfficiencyByRpm.map((p) => p.rpm), e.volumetricEfficiencyByRpm.map((p) => p.volumetricEfficiency), e.rpmEnd)
+    : e.volumetricEfficiency
+  const work = (pim / pAmb) ** ((AIR.gamma - 1) / AIR.gamma) - 1
+  const chargeK =
+    e.intercoolerEffectiveness === undefined
+      ? e.chargeTemperatureK
+      : s.ambient.temperatureK * (1 + ((1 - e.intercoolerEffectiveness) * work) / s.turbo.compressorEfficiency)
+  const exhaustKgS = fourStrokeAirFlowKgS(ve, pim, chargeK, e.displacementM3, e.rpmEnd) * (1 + 1 / e.airFuelRatio)
+  const ratio = x.ratioByRpm ? interpolateTable(x.ratioByRpm.map((p) => p.rpm), x.ratioByRpm.map((p) => p.ratio), e.rpmEnd) : x.ratio
+  const pem = pAmb + ratio * boostPa + x.driveAtZeroBoostPa
+  const pto = pAmb + x.backPressureCoefficientPaPerKg2S2 * exhaustKgS * exhaustKgS
+  if (!(pem > pto)) return Infinity
+  const gas = exhaustGas(x)
+  const psi = flowFunction(pto / pem, flowFunctionFor(gas.gamma))
+  return (exhaustKgS * Math.sqrt(gas.gasConstant * e.exhaustTemperatureK)) / (pem * psi)
+}
