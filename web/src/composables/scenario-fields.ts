@@ -19,6 +19,21 @@ export interface DescribedField extends FieldSpec {
   name: string
 }
 
+/** The three numbers of the hose to a port (`plumbing.top` or `plumbing.bottom`). */
+function lineFields(end: 'top' | 'bottom'): Record<string, FieldSpec> {
+  const End = end === 'top' ? 'Top' : 'Bottom'
+  return {
+    [`plumbing.${end}.boreM`]: { label: `${End} line bore`, quantity: 'smallLength', hint: `Inside diameter of the hose to the ${end} port` },
+    [`plumbing.${end}.lengthM`]: { label: `${End} line length`, quantity: 'length' },
+    [`plumbing.${end}.restrictorDiameterM`]: {
+      label: `${End} line restrictor`,
+      quantity: 'smallLength',
+      optional: true,
+      hint: 'A jet or pill in the line; empty: none',
+    },
+  }
+}
+
 /**
  * Every number of a scenario by its dotted path (`*` stands for a spring's index): what it is called on
  * screen and what it is measured in, for the form, the sweep axes and sim-core's messages.
@@ -71,9 +86,20 @@ const FIELDS: Readonly<Record<string, FieldSpec>> = {
   'wastegate.movingMassKg': { label: 'Moving mass', quantity: 'mass', hint: 'Valve, shaft, piston or diaphragm and a third of the spring' },
   'wastegate.dampingRatio': { label: 'Damping ratio', quantity: 'plain' },
   'wastegate.valveDischargeCoefficient': { label: 'Valve discharge coefficient', quantity: 'plain' },
-  'wastegate.topChamberVolumeM3': { label: 'Top chamber volume', quantity: 'smallVolume', hint: 'With the valve shut' },
-  'wastegate.bottomChamberVolumeM3': { label: 'Bottom chamber volume', quantity: 'smallVolume', hint: 'With the valve shut' },
-  'wastegate.portDiameterM': { label: 'Port bore', quantity: 'smallLength', hint: 'Fittings and vents of the actuator' },
+  'wastegate.topChamberVolumeM3': {
+    label: 'Top chamber volume',
+    quantity: 'smallVolume',
+    optional: true,
+    hint: 'With the valve shut. Empty: top area × (full lift + clearance)',
+  },
+  'wastegate.bottomChamberVolumeM3': {
+    label: 'Bottom chamber volume',
+    quantity: 'smallVolume',
+    optional: true,
+    hint: 'With the valve shut. Empty: bottom area × clearance',
+  },
+  'wastegate.chamberClearanceM': { label: 'Chamber clearance', quantity: 'smallLength', hint: 'Gap behind the diaphragm or piston at each end of its travel' },
+  'wastegate.portDiameterM': { label: 'Port bore', quantity: 'smallLength', hint: 'The actuator’s own fittings and vents; 1/8 NPT is about 3 mm' },
   'wastegate.portDischargeCoefficient': { label: 'Port discharge coefficient', quantity: 'plain' },
   'wastegate.crackThresholdM': { label: 'Lift that counts as open', quantity: 'smallLength' },
 
@@ -88,7 +114,9 @@ const FIELDS: Readonly<Record<string, FieldSpec>> = {
   'control.fraction': { label: 'Share of boost to the top', quantity: 'percent', hint: 'What the bleed passes on to the top chamber' },
   'control.duty': { label: 'Solenoid duty', quantity: 'percent' },
   'control.solenoidDiameterM': { label: 'Solenoid bore', quantity: 'smallLength' },
-  'control.restrictorDiameterM': { label: 'Restrictor bore', quantity: 'smallLength' },
+
+  ...lineFields('top'),
+  ...lineFields('bottom'),
   'control.targetBoostPa': { label: 'Boost target', quantity: 'pressure' },
   'control.proportionalPerPa': { label: 'Proportional gain', quantity: 'gainP', hint: 'Duty added per unit of boost short of target' },
   'control.integralPerPaS': { label: 'Integral gain', quantity: 'gainI' },

@@ -2,6 +2,16 @@
  * Which scenario numbers each part of the editor shows, by path. The main cards show what a builder sets for
  * every car; the advanced panels hold the model's constants, which carry working defaults.
  */
+/** The hoses from the ports to what feeds them: shown with the ports, since they shape every dynamic number. */
+export const PLUMBING_PATHS = [
+  'plumbing.top.boreM',
+  'plumbing.top.lengthM',
+  'plumbing.top.restrictorDiameterM',
+  'plumbing.bottom.boreM',
+  'plumbing.bottom.lengthM',
+  'plumbing.bottom.restrictorDiameterM',
+] as const
+
 export const WASTEGATE_PATHS = ['wastegate.valveDiameterM', 'wastegate.shaftDiameterM', 'wastegate.actuatorDiameterM', 'wastegate.maxLiftM'] as const
 
 export interface AdvancedPanel {
@@ -70,6 +80,7 @@ export const ADVANCED_PANELS: readonly AdvancedPanel[] = [
       'wastegate.valveDischargeCoefficient',
       'wastegate.topChamberVolumeM3',
       'wastegate.bottomChamberVolumeM3',
+      'wastegate.chamberClearanceM',
       'wastegate.portDiameterM',
       'wastegate.portDischargeCoefficient',
       'wastegate.crackThresholdM',

@@ -65,12 +65,12 @@ function controlLines(s: Scenario, f: Format): SheetLine[] {
     case 'solenoid-3port':
       return [
         { label: 'Solenoid', value: `three-port on the ${c.chamber} chamber, ${percent(c.duty)} duty` },
-        { label: 'Solenoid / restrictor bore', value: `${f('smallLength', c.solenoidDiameterM)} / ${f('smallLength', c.restrictorDiameterM)}` },
+        { label: 'Solenoid bore', value: f('smallLength', c.solenoidDiameterM) },
       ]
     case 'solenoid-4port':
       return [
         { label: 'Solenoid', value: `four-port, ${percent(c.duty)} duty` },
-        { label: 'Solenoid / restrictor bore', value: `${f('smallLength', c.solenoidDiameterM)} / ${f('smallLength', c.restrictorDiameterM)}` },
+        { label: 'Solenoid bore', value: f('smallLength', c.solenoidDiameterM) },
       ]
     case 'closed-loop':
       return [
@@ -84,6 +84,11 @@ function controlLines(s: Scenario, f: Format): SheetLine[] {
     default:
       return []
   }
+}
+
+function lineWords(end: 'top' | 'bottom', line: Scenario['plumbing']['top'], f: Format): SheetLine {
+  const restrictor = line.restrictorDiameterM === undefined ? '' : `, restrictor ${f('smallLength', line.restrictorDiameterM)}`
+  return { label: end === 'top' ? 'Top line' : 'Bottom line', value: `${f('smallLength', line.boreM)} bore, ${f('length', line.lengthM)}${restrictor}` }
 }
 
 function supplyLines(s: Scenario, b: BalanceResult, f: Format): SheetLine[] {
@@ -146,6 +151,7 @@ export function setupSheet(s: Scenario, format: Format): SetupSheet {
     { label: 'Top port', value: feedWords(s, feeds.top) },
     { label: 'Bottom port', value: feedWords(s, feeds.bottom) },
     ...controlLines(s, f),
+    ...(s.control.kind === 'none' ? [] : (['top', 'bottom'] as const).map((end) => lineWords(end, s.plumbing[end], f))),
   ]
 
   const d = s.exhaust.downstream
