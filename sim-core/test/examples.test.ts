@@ -6,6 +6,7 @@ import { readSweep } from '../src/cli/input.ts'
 import { runSweep } from '../src/cli/sweep-report.ts'
 import { computeBalance, parseScenario, pointAt, type Scenario } from '../src/index.ts'
 import { runPull } from '../src/pull/index.ts'
+import { EXAMPLE_DATALOG, exampleDatalogCsv } from './fit/example-datalog.ts'
 
 const examples = resolve(dirname(fileURLToPath(import.meta.url)), '../../examples')
 const files = readdirSync(examples).filter((f) => f.endsWith('.json')).sort()
@@ -72,4 +73,9 @@ describe('examples/', () => {
       expect(runPull(last.scenario).stats.outcome).toBe('converged')
     })
   }
+
+  it('four-cylinder-pull.datalog.csv is the model’s own pull, as its README line says', () => {
+    // When the model changes this file is due again: npx tsx sim-core/test/fit/example-datalog.ts
+    expect(readFileSync(EXAMPLE_DATALOG, 'utf8')).toBe(exampleDatalogCsv())
+  })
 })

@@ -78,8 +78,8 @@ describe('POST /api/datalogs', () => {
     // The log's own clock starts at 12.40 s; the series starts at the first row.
     expect(series.time_s[0]).toBe(0);
     expect(series.time_s[80]).toBeCloseTo(4, 9);
-    // Boost (psi) 0.24 in the first row, in Pa gauge (1 psi = 6894.757 Pa, NIST SP 811).
-    expect(series.boost_pa[0]).toBeCloseTo(0.24 * 6894.757, 1);
+    // Boost (psi) 0.14 in the first row, in Pa gauge (1 psi = 6894.757 Pa, NIST SP 811).
+    expect(series.boost_pa[0]).toBeCloseTo(0.14 * 6894.757, 1);
     expect(series.rpm[0]).toBe(2500);
     expect(series.duty).toBeNull();
   });
