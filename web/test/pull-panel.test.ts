@@ -54,6 +54,20 @@ describe('pull panel', () => {
     expect(wrapper.text()).toContain('Ratio mode')
   })
 
+  it('lays out a solenoid-fed CO₂ top port’s gas budget: what the lines hold, what passes while armed, a session', async () => {
+    const parsed = parseScenario({
+      ...defaultScenario(),
+      control: { kind: 'solenoid-3port', chamber: 'top', duty: 0.5 },
+      supply: { kind: 'co2', regulatorSetpointPa: 103_421 },
+    })
+    if (!parsed.ok) throw new Error(`the CO₂ scenario is not valid: ${JSON.stringify(parsed.issues)}`)
+    const { wrapper } = await mountEditor(parsed.scenario, { withPull: true })
+    await settle()
+    expect(text(wrapper, 'pull-held')).toMatch(/ g at the setpoint$/)
+    expect(text(wrapper, 'pull-armed')).toMatch(/ g a minute pass the solenoid to its vent$/)
+    expect(text(wrapper, 'pull-session')).toMatch(/ g, \d+ % of a full bottle$/)
+  })
+
   it('plots every series on one shared time axis, with a hover that spans them all', async () => {
     const parsed = parseScenario({ ...defaultScenario(), control: { kind: 'both' }, supply: { kind: 'co2', regulatorSetpointPa: 68_948 } })
     if (!parsed.ok) throw new Error(`the CO₂ scenario is not valid: ${JSON.stringify(parsed.issues)}`)

@@ -1,4 +1,4 @@
-import type { PullResult, Scenario } from '@crackpoint/sim-core'
+import { gasBudget, type PullResult, type Scenario } from '@crackpoint/sim-core'
 import type { FieldQuantity } from './field-units'
 
 export interface PullLine {
@@ -57,9 +57,7 @@ export function pullLines(result: PullResult, scenario: Scenario, f: Format): Pu
   lines.push({ key: 'lift', label: 'Largest lift', value: `${f('percent', m.maxLiftFraction, 0)} of full lift` })
   if (m.gasUsedPerPullKg !== null) {
     // A pull can draw well under a gram from a bottle; three figures keep it from reading as nothing.
-    const grams = m.gasUsedPerPullKg * 1000
-    const digits = grams >= 100 ? 0 : Math.max(0, 2 - Math.floor(Math.log10(Math.max(grams, 1e-6))))
-    lines.push({ key: 'gas', label: 'Gas per pull', value: f('gasMass', m.gasUsedPerPullKg, digits) })
+    lines.push({ key: 'gas', label: 'Gas per pull', value: f('gasMass', m.gasUsedPerPullKg, gasDigits(m.gasUsedPerPullKg)) })
   }
   if (m.pullsPerSupply !== null) {
     lines.push({
@@ -68,9 +66,36 @@ export function pullLines(result: PullResult, scenario: Scenario, f: Format): Pu
       value: `about ${Math.floor(m.pullsPerSupply).toLocaleString('en')}`,
     })
   }
+  lines.push(...budgetLines(result, scenario, f))
   if (m.compressorDuty !== null) lines.push({ key: 'compressor', label: 'Compressor running', value: `${f('percent', m.compressorDuty, 0)} of the pull` })
   if (m.tankStartPa !== null && m.tankEndPa !== null && m.tankMinPa !== null) {
     lines.push({ key: 'tank', label: 'Tank', value: `${p(m.tankStartPa)} at the start, ${p(m.tankMinPa)} at its lowest, ${p(m.tankEndPa)} at the end` })
+  }
+  return lines
+}
+
+/** Grams to three figures: a pull can draw well under a gram, and a day kilograms. */
+function gasDigits(kg: number): number {
+  const grams = kg * 1000
+  return grams >= 100 ? 0 : Math.max(0, 2 - Math.floor(Math.log10(Math.max(grams, 1e-6))))
+}
+
+/** Where a regulated supply's gas goes over a session (sim-core's gasBudget), beside the pull's own figures. */
+function budgetLines(result: PullResult, scenario: Scenario, f: Format): PullLine[] {
+  const budget = gasBudget(scenario, result)
+  if (budget === null) return []
+  const g = (kg: number) => f('gasMass', kg, gasDigits(kg))
+  const gates = scenario.wastegate.count === 1 ? '' : `, all ${scenario.wastegate.count} gates`
+  const lines: PullLine[] = [{ key: 'held', label: 'Lines and chambers hold', value: `${g(budget.heldKg)} at the setpoint${gates}` }]
+  if (budget.armedKgPerS > 0) {
+    lines.push({ key: 'armed', label: 'Armed between pulls', value: `${g(budget.armedKgPerS * 60)} a minute pass the solenoid to its vent${gates}` })
+  }
+  const { plan, kg, shareOfBottle, emptiesBottle } = budget.session
+  const share =
+    shareOfBottle === null ? '' : emptiesBottle ? ': more than a full bottle' : `, ${f('percent', shareOfBottle, shareOfBottle < 0.01 ? 1 : 0)} of a full bottle`
+  lines.push({ key: 'session', label: `A session of ${plan.pulls} pulls, ${plan.armedMinutes} min armed`, value: `${g(kg)}${share}` })
+  if (budget.tankRecoveryS !== null && Number.isFinite(budget.tankRecoveryS)) {
+    lines.push({ key: 'recovery', label: 'Compressor wins a pull back in', value: f('time', budget.tankRecoveryS) })
   }
   return lines
 }
