@@ -153,8 +153,8 @@ describe('PUT /api/datalogs/:id/mapping', () => {
     expect(response.status, JSON.stringify(response.body)).toBe(200);
     expect(response.body.datalog.mappingConfirmed).toBe(true);
     expect(response.body.datalog.mapping.boost.unit).toBe('kPa');
-    // The first row's 0.24 now read as kPa.
-    expect(response.body.series.boostPa[0]).toBeCloseTo(240, 6);
+    // The first row's 0.14 now read as kPa.
+    expect(response.body.series.boostPa[0]).toBeCloseTo(140, 6);
     expect(response.body.series.drivePa).toBeNull();
     const stored = await ctx.knex('datalog_series').where({ upload_id: id }).first();
     expect(stored.mapping_confirmed).toBe(true);
