@@ -104,6 +104,8 @@ export const datalogFitReportSchema = z.looseObject({
   seatForceN: z.number(),
   initial: z.object({ ratio: z.number(), seatForceN: z.number() }),
   rmsResidualPa: z.number(),
+  /** Measured − simulated drive pressure (RMS) when the log has it and it was fitted alongside boost. */
+  driveRmsResidualPa: z.number().nullable(),
   initialRmsResidualPa: z.number(),
   relativeResidual: z.number(),
   poorFit: z.boolean(),

@@ -5,10 +5,15 @@ import type { Scenario } from '../scenario.ts'
 import { fitParametersOf, withFitParameters, type FitParameters } from './fit-parameters.ts'
 import { interpolateSeries } from './interpolate-series.ts'
 
-/** Boost measured over one pull: time from the start of the pull (s) and boost, gauge (Pa). */
+/**
+ * Boost measured over one pull: time from the start of the pull (s) and boost, gauge (Pa); and drive pressure,
+ * gauge (Pa), when the log has it (a back-pressure sensor): fitted alongside boost, it pins the drive-to-boost ratio
+ * that boost alone only infers.
+ */
 export interface MeasuredBoost {
   timeS: readonly number[]
   boostPa: readonly number[]
+  drivePa?: readonly number[] | null
 }
 
 export interface PullFitOptions {
@@ -35,6 +40,8 @@ export interface PullFitReport extends FitParameters {
   atBound: { ratio: boolean; seatForceN: boolean }
   /** Root mean square of measured − simulated boost over the compared points, Pa. */
   rmsResidualPa: number
+  /** The same for drive pressure when the log has it (fitted alongside boost), else null. */
+  driveRmsResidualPa: number | null
   initialRmsResidualPa: number
   /** rmsResidualPa over the root mean square of the measured boost. */
   relativeResidual: number
@@ -98,6 +105,13 @@ function checkMeasured(m: MeasuredBoost): void {
     if (i > 0 && !(t > m.timeS[i - 1]!)) throw new RangeError(`measured.timeS[${i}] must be later than the time before it`)
     if (!Number.isFinite(m.boostPa[i]!)) throw new RangeError(`measured.boostPa[${i}] must be a finite number, not ${m.boostPa[i]}`)
   }
+  const drive = m.drivePa
+  if (drive === undefined || drive === null) return
+  if (!Array.isArray(drive)) throw new RangeError('measured.drivePa must be a list')
+  if (drive.length !== m.timeS.length) throw new RangeError(`measured.drivePa must have one value per time (${m.timeS.length}), not ${drive.length}`)
+  for (let i = 0; i < drive.length; i++) {
+    if (!Number.isFinite(drive[i]!)) throw new RangeError(`measured.drivePa[${i}] must be a finite number, not ${drive[i]}`)
+  }
 }
 
 const clamp = (v: number, lo: number, hi: number) => Math.min(Math.max(v, lo), hi)
@@ -144,11 +158,14 @@ export function fitPullToLog(scenario: Scenario, measured: MeasuredBoost, option
   const duration = scenario.engine.pullDurationS
   const times: number[] = []
   const observed: number[] = []
+  const drive = measured.drivePa ?? null
+  const observedDrive: number[] = []
   for (let i = 0; i < measured.timeS.length; i++) {
     const t = measured.timeS[i]!
     if (t < 0 || t > duration) continue
     times.push(t)
     observed.push(measured.boostPa[i]!)
+    if (drive) observedDrive.push(drive[i]!)
   }
   if (times.length < MIN_POINTS) {
     throw new RangeError(
@@ -162,7 +179,9 @@ export function fitPullToLog(scenario: Scenario, measured: MeasuredBoost, option
   const upper = [ratioBounds[1] / scale[0], forceBounds[1] / scale[1]]
   const toParameters = (u: readonly number[]): FitParameters => ({ ratio: u[0]! * scale[0], seatForceN: u[1]! * scale[1] })
 
-  const cache = new Map<string, { scaled: Float64Array; boostPa: number[]; outcome: HybridOutcome }>()
+  // Residuals: boost at each compared time, then drive pressure there when the log has it, both over the same scale
+  // (pascals weigh the same in either).
+  const cache = new Map<string, { scaled: Float64Array; boostPa: number[]; drivePa: number[] | null; outcome: HybridOutcome }>()
   let evaluations = 0
   const simulate = (u: readonly number[]) => {
     const key = `${u[0]}|${u[1]}`
@@ -173,11 +192,15 @@ export function fitPullToLog(scenario: Scenario, measured: MeasuredBoost, option
     // The gradient's probe may sit a step past a bound; it stays a valid pull as long as the force is not negative.
     const pull = runPull(withFitParameters(scenario, { ratio: p.ratio, seatForceN: Math.max(p.seatForceN, 0) }))
     const boostPa = interpolateSeries(pull.series.timeS, pull.series.boostPa, times)
-    const entry = { scaled: Float64Array.from(boostPa, (b) => b / boostScale), boostPa, outcome: pull.stats.outcome }
+    const drivePa = drive ? interpolateSeries(pull.series.timeS, pull.series.drivePa, times) : null
+    const scaled = Float64Array.from(drivePa ? [...boostPa, ...drivePa] : boostPa, (b) => b / boostScale)
+    const entry = { scaled, boostPa, drivePa, outcome: pull.stats.outcome }
     cache.set(key, entry)
     return entry
   }
-  const data = { x: times.map((_, i) => i), y: observed.map((b) => b / boostScale) }
+  const targets = drive ? [...observed, ...observedDrive] : observed
+  const data = { x: targets.map((_, i) => i), y: targets.map((b) => b / boostScale) }
+  const m = data.y.length
   const model = (u: number[]) => {
     const predicted = simulate(u).scaled
     return (i: number) => predicted[i]!
@@ -185,14 +208,13 @@ export function fitPullToLog(scenario: Scenario, measured: MeasuredBoost, option
   const costOf = (u: readonly number[]) => {
     const predicted = simulate(u).scaled
     let sum = 0
-    for (let i = 0; i < n; i++) sum += (data.y[i]! - predicted[i]!) ** 2
+    for (let i = 0; i < m; i++) sum += (data.y[i]! - predicted[i]!) ** 2
     return sum
   }
 
   let u = [1, start.seatForceN / scale[1]]
   let cost = costOf(u)
-  const initialCost = cost
-  let damping = 1e-3 * n
+  let damping = 1e-3 * m
   let iterations = 0
   let stop: PullFitStop = 'max-iterations'
   for (;;) {
@@ -235,7 +257,7 @@ export function fitPullToLog(scenario: Scenario, measured: MeasuredBoost, option
       }
     } else {
       damping *= 11
-      if (damping > MAX_DAMPING_PER_POINT * n) {
+      if (damping > MAX_DAMPING_PER_POINT * m) {
         stop = 'no-improvement'
         break
       }
@@ -244,7 +266,11 @@ export function fitPullToLog(scenario: Scenario, measured: MeasuredBoost, option
 
   const best = simulate(u)
   const fitted = toParameters(u)
-  const rmsResidualPa = Math.sqrt(cost / n) * boostScale
+  const rms = (measuredPa: readonly number[], simulatedPa: readonly number[]) =>
+    Math.sqrt(measuredPa.reduce((sum, v, i) => sum + (v - simulatedPa[i]!) ** 2, 0) / measuredPa.length)
+  const rmsResidualPa = rms(observed, best.boostPa)
+  const driveRmsResidualPa = drive && best.drivePa ? rms(observedDrive, best.drivePa) : null
+  const initialRmsResidualPa = rms(observed, simulate([1, start.seatForceN / scale[1]]).boostPa)
   const rmsMeasured = Math.sqrt(observed.reduce((sum, b) => sum + b * b, 0) / n)
   const relativeResidual = rmsMeasured > 0 ? rmsResidualPa / rmsMeasured : Number.POSITIVE_INFINITY
   const near = (v: number, bound: number, width: number) => Math.abs(v - bound) <= 1e-6 * width
@@ -263,6 +289,7 @@ export function fitPullToLog(scenario: Scenario, measured: MeasuredBoost, option
     )
   }
   if (atBound.ratio || atBound.seatForceN) notes.push('A fitted value sits on the edge of its range: the best answer may lie outside it.')
+  if (drive) notes.push('The logged drive pressure was fitted alongside boost: it pins the drive-to-boost ratio.')
   if (times.length < measured.timeS.length) {
     notes.push(`${measured.timeS.length - times.length} measured points lie outside the pull (0 to ${duration} s) and were not compared.`)
   }
@@ -272,7 +299,8 @@ export function fitPullToLog(scenario: Scenario, measured: MeasuredBoost, option
     bounds: { ratio: [...ratioBounds], seatForceN: [...forceBounds] },
     atBound,
     rmsResidualPa,
-    initialRmsResidualPa: Math.sqrt(initialCost / n) * boostScale,
+    driveRmsResidualPa,
+    initialRmsResidualPa,
     relativeResidual,
     poorFit,
     iterations,

@@ -2,7 +2,7 @@ import { describe, expect, it } from 'vitest'
 import { defaultScenario, fitParametersOf, fitPullToLog, POOR_FIT_RELATIVE_RESIDUAL, toSI, units } from '../../src/index.ts'
 import { expectClose } from '../expect-close.ts'
 import { scenarioWith } from '../pull/pull-helpers.ts'
-import { syntheticLog } from './synthetic-log.ts'
+import { syntheticLog, syntheticLogWithDrive } from './synthetic-log.ts'
 
 // About 0.1 psi (1 σ), the scatter of a boost sensor read by a logger (common practice, no source).
 const NOISE_PA = toSI(units.psi, 0.1)
@@ -38,6 +38,23 @@ describe('fitPullToLog', { timeout: 60_000 }, () => {
     expectClose(report.ratio, truth.ratio, 0.02 * truth.ratio, 'ratio')
     expectClose(report.seatForceN, truth.seatForceN, 0.02 * truth.seatForceN, 'seat force')
     expect(report.converged).toBe(true)
+  })
+
+  it('fits a logged drive pressure alongside boost: the ratio within 1 % where boost noise alone blurs it', () => {
+    const base = defaultScenario()
+    const truth = { ratio: 1.7, seatForceN: 150 }
+    // A noisy boost sensor (0.5 psi) and a back-pressure sensor of 0.2 psi (common practice, no source).
+    const log = syntheticLogWithDrive(base, truth, 5 * NOISE_PA, toSI(units.psi, 0.2), 11)
+    const withDrive = fitPullToLog(base, log)
+    expectClose(withDrive.ratio, truth.ratio, 0.01 * truth.ratio, 'ratio with drive')
+    expectClose(withDrive.seatForceN, truth.seatForceN, 0.03 * truth.seatForceN, 'seat force with drive')
+    // What is left of drive is its sensor's noise.
+    expectClose(withDrive.driveRmsResidualPa!, toSI(units.psi, 0.2), 0.25 * toSI(units.psi, 0.2), 'drive RMS residual')
+    expect(withDrive.notes.join(' ')).toContain('drive pressure was fitted alongside boost')
+    const boostOnly = fitPullToLog(base, { timeS: log.timeS, boostPa: log.boostPa })
+    expect(boostOnly.driveRmsResidualPa).toBeNull()
+    expect(Math.abs(withDrive.ratio - truth.ratio)).toBeLessThanOrEqual(Math.abs(boostOnly.ratio - truth.ratio) + 1e-3)
+    expect(() => fitPullToLog(base, { ...log, drivePa: log.drivePa!.slice(1) })).toThrow(/measured\.drivePa must have one value per time/)
   })
 
   it('finds the exact pair from a log without noise', () => {

@@ -22,13 +22,28 @@ export function gaussian(random: () => number): number {
  * every `everySamples` samples with normal noise of `noisePa` (1 σ) from a seeded generator.
  */
 export function syntheticLog(scenario: Scenario, p: FitParameters, noisePa: number, seed: number, everySamples = 5) {
+  return syntheticLogWithDrive(scenario, p, noisePa, 0, seed, everySamples, false)
+}
+
+/** The same with drive pressure logged too, with noise of its own (`driveNoisePa`, 1 σ) after boost's. */
+export function syntheticLogWithDrive(
+  scenario: Scenario,
+  p: FitParameters,
+  noisePa: number,
+  driveNoisePa: number,
+  seed: number,
+  everySamples = 5,
+  withDrive = true,
+) {
   const pull = runPull(withFitParameters(scenario, p))
   const random = seededRandom(seed)
   const timeS: number[] = []
   const boostPa: number[] = []
+  const drivePa: number[] = []
   for (let i = 0; i < pull.series.timeS.length; i += everySamples) {
     timeS.push(pull.series.timeS[i]!)
     boostPa.push(pull.series.boostPa[i]! + noisePa * gaussian(random))
+    if (withDrive) drivePa.push(pull.series.drivePa[i]! + driveNoisePa * gaussian(random))
   }
-  return { timeS, boostPa }
+  return withDrive ? { timeS, boostPa, drivePa } : { timeS, boostPa }
 }

@@ -381,7 +381,8 @@ export async function fitDatalog(
   const charge = await reserveFitUnits(deps, auth, original.id);
   let fit: PullFitReport;
   try {
-    fit = await deps.fits.run(bounded, { timeS: series.timeS, boostPa: series.boostPa }, { maxEvaluations: FIT_PULL_BUDGET });
+    // A logged drive pressure is fitted alongside boost: it pins the ratio that boost alone only infers.
+    fit = await deps.fits.run(bounded, { timeS: series.timeS, boostPa: series.boostPa, drivePa: series.drivePa }, { maxEvaluations: FIT_PULL_BUDGET });
   } catch (error) {
     await knex('usage_ledger').where({ id: charge }).delete();
     if (error instanceof FitTimeoutError) {
