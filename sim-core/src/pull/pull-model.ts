@@ -127,7 +127,8 @@ export interface PullModel {
   /** Outputs at a state (a fresh object). */
   outputs(t: number, y: readonly number[], mode: PullMode): PullOutputs
   /** The starting state at shaft speed `omega0`, rad/s. */
-  initialState(omega0: number): { y: number[]; mode: PullMode }
+  /** The start of a pull; with `ventedChambers` the integrated chambers start at ambient instead of their steady pressure. */
+  initialState(omega0: number, ventedChambers?: boolean): { y: number[]; mode: PullMode }
   /** Gas held in the chambers that the supply feeds, kg (p·V/(R·T) of each). */
   supplyChamberGasKg(t: number, y: readonly number[], mode: PullMode): number
 }
@@ -721,7 +722,7 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   }
 
   /** The state a pull starts from: intake (and drive) pressure in balance at the starting shaft speed. */
-  const initialState = (omega0: number): { y: number[]; mode: PullMode } => {
+  const initialState = (omega0: number, ventedChambers = false): { y: number[]; mode: PullMode } => {
     const y = new Array<number>(layout.size).fill(0)
     y[omegaI] = Math.max(omega0, omegaMin)
     y[intakeI] = pAmb
@@ -751,8 +752,8 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       }
     }
     evaluate(0, y, mode, null, true)
-    if (topI >= 0) y[topI] = out.topPa + pAmb
-    if (bottomI >= 0) y[bottomI] = out.bottomPa + pAmb
+    if (topI >= 0 && !ventedChambers) y[topI] = out.topPa + pAmb
+    if (bottomI >= 0 && !ventedChambers) y[bottomI] = out.bottomPa + pAmb
     evaluate(0, y, mode, null)
     return { y, mode: { valve: out.netForceN <= 0 ? 'seated' : 'free', compressorOn: mode.compressorOn } }
   }

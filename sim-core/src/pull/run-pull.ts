@@ -18,6 +18,12 @@ export interface RunPullOptions {
   chambers?: ChamberTreatment
   /** Overrides `scenario.solver.relativeTolerance`. */
   relativeTolerance?: number
+  /**
+   * How the actuator's chambers start: 'settled' (the default) at their steady pressures, as after cruising with the
+   * system armed; 'vented' at ambient, as when the supply reaches the ports only as the throttle opens (a system armed
+   * at wide-open throttle). Quasi-static chambers are at their steady pressure either way.
+   */
+  startChambers?: 'settled' | 'vented'
 }
 
 /**
@@ -60,7 +66,11 @@ export function runPull(s: Scenario, options: RunPullOptions = {}): PullResult {
   if (!(rtol > 0 && rtol < 1)) throw new RangeError(`options.relativeTolerance must be between 0 and 1, not ${rtol}`)
   const scenario = rtol === s.solver.relativeTolerance ? s : { ...s, solver: { ...s.solver, relativeTolerance: rtol } }
   const model = buildPullModel(scenario, options.chambers === undefined ? {} : { chambers: options.chambers })
-  const start = model.initialState(initialShaftSpeedRadS(s))
+  const startChambers = options.startChambers ?? 'settled'
+  if (startChambers !== 'settled' && startChambers !== 'vented') {
+    throw new RangeError(`options.startChambers must be "settled" or "vented", not ${String(startChambers)}`)
+  }
+  const start = model.initialState(initialShaftSpeedRadS(s), startChambers === 'vented')
   const duration = s.engine.pullDurationS
 
   const series: PullSeries = {
