@@ -36,6 +36,27 @@ describe('port arrangement form', () => {
     expect(wrapper.find('[data-testid="supply-state"]').text()).toContain('The top port gets 10.0 psi.')
   })
 
+  it('shows the lines of the ports the arrangement connects, top and bottom side by side, and none with nothing connected', async () => {
+    const { wrapper } = await mountEditor()
+    const lines = () => wrapper.findAll('[data-testid^="plumbing."]').map((w) => w.attributes('data-testid'))
+    await choose(wrapper, 'arrangement-bottom-boost')
+    expect(lines()).toEqual(['plumbing.bottom.boreM', 'plumbing.bottom.lengthM', 'plumbing.bottom.restrictorDiameterM'])
+    // 1/8 NPT ports with 4 mm hose, half a metre, by default: 0.157 in of bore.
+    expect(inputValue(wrapper, 'plumbing.bottom.boreM')).toMatch(/^0\.157/)
+    await choose(wrapper, 'arrangement-solenoid-4port')
+    expect(lines()).toEqual([
+      'plumbing.top.boreM',
+      'plumbing.bottom.boreM',
+      'plumbing.top.lengthM',
+      'plumbing.bottom.lengthM',
+      'plumbing.top.restrictorDiameterM',
+      'plumbing.bottom.restrictorDiameterM',
+    ])
+    await choose(wrapper, 'arrangement-none')
+    expect(lines()).toEqual([])
+    expect(wrapper.text()).not.toContain('Lines to the ports')
+  })
+
   it('keeps a compressor’s settings when the supply is switched away and back', async () => {
     const { wrapper } = await mountEditor()
     await choose(wrapper, 'arrangement-both')

@@ -62,7 +62,8 @@ export function pullLines(result: PullResult, scenario: Scenario, f: Format): Pu
   if (m.pullsPerSupply !== null) {
     lines.push({
       key: 'pulls',
-      label: scenario.supply.kind === 'co2' ? 'Pulls per bottle' : 'Back-to-back pulls',
+      // Pulls alone: what the system passes while armed between them is in the session line below.
+      label: scenario.supply.kind === 'co2' ? 'Pulls per bottle, pulls alone' : 'Back-to-back pulls',
       value: `about ${Math.floor(m.pullsPerSupply).toLocaleString('en')}`,
     })
   }
