@@ -246,7 +246,8 @@ describe('command line usage', () => {
   })
 })
 
-describe('npm run sim from the repository root', () => {
+// Starting npm and tsx takes seconds on a busy machine: each test's limit is the spawn's own minute.
+describe('npm run sim from the repository root', { timeout: 60_000 }, () => {
   const npm = (...args: string[]) => {
     const env = { ...process.env }
     delete env.INIT_CWD
@@ -319,7 +320,8 @@ describe('no command prints a stack trace', () => {
     }
   })
 
-  it('through npm from the repository root, too', async () => {
+  // Starting npm and tsx takes seconds on a busy machine: the test's own limit is the spawn's.
+  it('through npm from the repository root, too', { timeout: 60_000 }, async () => {
     const env = { ...process.env }
     delete env.INIT_CWD
     const file = writeJson('big-diaphragm-npm.json', await bigDiaphragm())
