@@ -48,7 +48,7 @@ describe('pull panel', () => {
     const expected = runPull(parsed.scenario).metrics
     expect(text(wrapper, 'pull-crack')).toContain(`at ${formatQuantity('pressure', 'us', expected.crackBoostPa!)}`)
     expect(text(wrapper, 'pull-settled')).toBe(formatQuantity('pressure', 'us', expected.settledBoostPa!))
-    expect(text(wrapper, 'pull-static')).toContain('which the settled boost should match')
+    expect(text(wrapper, 'pull-static')).toContain('which the settled boost matches')
     expect(text(wrapper, 'pull-creep')).toBe('none: the valve never reached full lift')
     expect(text(wrapper, 'pull-flags')).toContain('Nothing to flag in this pull.')
     expect(wrapper.text()).toContain('Ratio mode')
