@@ -3,6 +3,7 @@ import { AIR } from './gas.ts'
 import { flowFunctionFor, type FlowFunction } from './orifice.ts'
 import { chamberPlumbing, openAreaM2, type ChamberPorts, type SourceKind } from './pull/chamber-plumbing.ts'
 import { chamberGas } from './pull/gases.ts'
+import { bracketedRoot } from './bracketed-root.ts'
 import { steadyChamberPressurePa } from './steady-chamber.ts'
 import { co2BottleState, type Co2BottleState } from './co2.ts'
 import type { Scenario } from './scenario.ts'
@@ -147,6 +148,8 @@ interface ChamberPaths {
  */
 export interface StaticChambers {
   affine: boolean
+  /** The solenoid duty the chambers are taken at (0 without a solenoid). */
+  duty: number
   coefficients: ChamberCoefficients
   /** Gauge pressures of the top and bottom chambers at boost b. */
   at(boostPa: number): { topPa: number; bottomPa: number }
@@ -183,7 +186,7 @@ export function staticChambers(s: Scenario, held: WindowConditions = {}): Static
       flow: flowFunctionFor(gas.gamma),
     }
   }
-  /** Gauge pressure of a source at boost b, and its (α, β). */
+  /** Gauge pressure of a source at boost b. */
   const source = (kind: SourceKind, b: number): number => {
     switch (kind) {
       case 'intake':
@@ -212,6 +215,7 @@ export function staticChambers(s: Scenario, held: WindowConditions = {}): Static
   const one = at(100_000)
   return {
     affine,
+    duty,
     coefficients: {
       alphaTop: (one.topPa - zero.topPa) / 100_000,
       betaTopPa: zero.topPa,
@@ -361,18 +365,11 @@ export function dutyToCrackAt(s: Scenario, boostPa: number): number | null {
   const { seatForceN } = springTotals(s.springs, inp.areas)
   const down = downstreamPa(s, boostPa, false)
   const net = (duty: number) => netForce({ ...inp, chambers: staticChambers(s, { duty }) }, seatForceN, boostPa, down)
-  let lo = c.dutyMin
-  let hi = c.dutyMax
-  const fLo = net(lo)
-  const fHi = net(hi)
+  const fLo = net(c.dutyMin)
+  const fHi = net(c.dutyMax)
   // Either end may be the one that opens the valve (duty feeds one chamber and vents the other).
-  if (fLo === fHi || Math.sign(fLo) === Math.sign(fHi)) return Math.abs(fLo) <= Math.abs(fHi) ? lo : hi
-  for (let i = 0; i < 40; i++) {
-    const mid = 0.5 * (lo + hi)
-    if (Math.sign(net(mid)) === Math.sign(fLo)) lo = mid
-    else hi = mid
-  }
-  return 0.5 * (lo + hi)
+  if (fLo === fHi || Math.sign(fLo) === Math.sign(fHi)) return Math.abs(fLo) <= Math.abs(fHi) ? c.dutyMin : c.dutyMax
+  return bracketedRoot(net, c.dutyMin, c.dutyMax, fLo, fHi, 1e-12, 60)
 }
 
 /** Ratios of the "anywhere from 1:1 to 2:1" answer. */

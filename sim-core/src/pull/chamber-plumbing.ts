@@ -126,6 +126,30 @@ export function chamberPlumbing(s: Scenario): Plumbing {
   }
 }
 
+/**
+ * Which ports an arrangement joins by a hose to a source (the rest vent through their fitting alone), from the
+ * arrangement's kind and switches only, so a form can ask while its numbers are still being typed. The same answer
+ * as chamberPlumbing's: a port is piped exactly where its lineVolumeM3 is above zero (test/pull/plumbing.test.ts).
+ */
+export function pipedPorts(control: { kind: string; chamber?: 'top' | 'bottom'; bottomOnBoost?: boolean }): { top: boolean; bottom: boolean } {
+  switch (control.kind) {
+    case 'bottom-boost':
+      return { top: false, bottom: true }
+    case 'top-supply':
+    case 'closed-loop':
+      return { top: true, bottom: false }
+    case 'both':
+    case 'solenoid-4port':
+      return { top: true, bottom: true }
+    case 'bleed-top':
+      return { top: true, bottom: control.bottomOnBoost !== false }
+    case 'solenoid-3port':
+      return { top: control.chamber === 'top', bottom: control.chamber !== 'top' }
+    default:
+      return { top: false, bottom: false }
+  }
+}
+
 /** The open area of a path at a duty. */
 export function openAreaM2(c: Connection, duty: number): number {
   return c.share === 'always' ? c.dischargeAreaM2 : c.share === 'on' ? c.dischargeAreaM2 * duty : c.dischargeAreaM2 * (1 - duty)

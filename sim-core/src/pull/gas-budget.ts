@@ -49,14 +49,14 @@ export interface GasBudget {
 
 /** The supply's own gas flow into the chambers that draw on it, at zero boost, every gate, kg/s. */
 function armedFlowKgS(s: Scenario): number {
-  const plumbing = chamberPlumbing(s)
-  const c = s.control
-  const duty = c.kind === 'closed-loop' ? c.dutyMin : (plumbing.fixedDuty ?? 0)
   const regulated = regulatedSupply(s)
   if (regulated === null) return 0
+  const plumbing = chamberPlumbing(s)
   const pAmb = s.ambient.pressurePa
-  // The static level's chambers are at this same duty.
-  const chambers = staticChambers(s).at(0)
+  // Armed at zero boost, with the solenoid where the static level takes it (a closed loop at its floor duty).
+  const statics = staticChambers(s)
+  const duty = statics.duty
+  const chambers = statics.at(0)
   const fromSupply = (ports: ChamberPorts, chamberGaugePa: number) => {
     const gas = chamberGas(s, ports.connections)
     const sqrtRT = Math.sqrt(gas.gasConstant * s.ambient.temperatureK)

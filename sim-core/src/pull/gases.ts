@@ -19,7 +19,6 @@ export function exhaustGas(exhaust: Scenario['exhaust']): GasProperties {
   return Object.freeze({ gasConstant: (cp * (gamma - 1)) / gamma, gamma, cp })
 }
 
-
 /**
  * The gas in a chamber: CO₂ when a CO₂ bottle feeds it, else air. Both levels take it from here, so the static
  * divider and the pull's chambers flow the same gas.

@@ -1,4 +1,4 @@
-import { computeBalance } from '../balance.ts'
+import { boostAtLift } from '../balance.ts'
 import { fourStrokeAirFlowKgS, interpolateTable } from '../engine.ts'
 import { AIR } from '../gas.ts'
 import { flowFunction, flowFunctionFor } from '../orifice.ts'
@@ -20,7 +20,8 @@ const SIZING_BOOST_WITHOUT_CRACK_PA = 100_000
 export function impliedTurbineAreaM2(s: Scenario): number {
   const e = s.engine
   const x = s.exhaust
-  const crack = computeBalance(s).crack
+  // The static crack alone (the valve at its seat), not the whole balance with its ratio range.
+  const crack = boostAtLift(s, 0)
   const boostPa = crack.status === 'opens' ? Math.max(crack.boostPa, 0) : SIZING_BOOST_WITHOUT_CRACK_PA
   const pAmb = s.ambient.pressurePa
   const pim = pAmb + boostPa

@@ -1,4 +1,4 @@
-import { boostAtLift, computeBalance, type WindowConditions } from '../balance.ts'
+import { boostAtLift, type WindowConditions } from '../balance.ts'
 import { springTotals, wastegateAreas } from '../geometry.ts'
 import type { Scenario } from '../scenario.ts'
 import type { PullFlags, PullMetrics, PullSeries } from './pull-result.ts'
@@ -156,7 +156,7 @@ export function pullMetrics(
   // Flags.
   const areas = wastegateAreas(s.wastegate)
   const { seatForceN, rateNPerM } = springTotals(s.springs, areas)
-  const staticCrack = computeBalance(s).crack
+  const staticCrack = boostAtLift(s, 0)
   const staticCrackPa = staticCrack.status === 'opens' ? staticCrack.boostPa : null
   let heldOpenByDrive = false
   let supplyBelowSetpoint = false

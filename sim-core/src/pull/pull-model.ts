@@ -360,7 +360,10 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   let chamberFlowIn = 0
   let chamberDraw = 0
 
-  /** C_d·A of a chamber's path i as open at this duty (a switching valve's time share applied). */
+  /**
+   * C_d·A of a chamber's path i as open at this duty (a switching valve's time share applied): chamber-plumbing's
+   * openAreaM2 on the typed arrays the right-hand side keeps, so an evaluation reads no objects.
+   */
   const openArea = (ch: ChamberModel, i: number, duty: number): number => {
     const share = ch.shares[i]!
     const a = ch.areas[i]!

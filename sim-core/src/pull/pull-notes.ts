@@ -1,4 +1,4 @@
-import { boostAtLift, computeBalance, dutyToCrackAt, staticChambers, type WindowConditions } from '../balance.ts'
+import { boostAtLift, dutyToCrackAt, staticChambers, type WindowConditions } from '../balance.ts'
 import { wastegateAreas } from '../geometry.ts'
 import type { Scenario } from '../scenario.ts'
 import { formatQuantity } from '../units.ts'
@@ -64,9 +64,8 @@ export function pullNotes(s: Scenario, series: PullSeries, m: PullMetrics): stri
     const targets = c.targetByRpm?.map((p) => p.boostPa) ?? [c.targetBoostPa]
     const lowest = Math.min(...targets)
     const highest = Math.max(...targets)
-    const atDuty = (duty: number) => computeBalance({ ...s, control: { ...c, dutyMin: duty, dutyMax: duty } }).crack
     const crackAt = (duty: number) => {
-      const o = atDuty(duty)
+      const o = boostAtLift(s, 0, { duty })
       return o.status === 'opens' ? o.boostPa : o.status === 'open-at-zero-boost' ? 0 : Number.POSITIVE_INFINITY
     }
     const ends = [crackAt(c.dutyMin), crackAt(c.dutyMax)]

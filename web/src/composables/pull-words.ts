@@ -21,6 +21,9 @@ const OUTCOMES = {
   'too-many-events': 'The valve hit its stops so often that the pull was stopped as chattering; the figures cover the part it reached.',
 } as const
 
+/** How close a settled pull and the static balance at its lift count as matching: 0.05 psi (MODEL.md §4b). */
+const SETTLED_MATCH_PA = 344.7
+
 /** The metrics of one pull (MODEL.md §5) as lines a builder reads, in the user's units. */
 export function pullLines(result: PullResult, scenario: Scenario, f: Format): PullLine[] {
   const m = result.metrics
@@ -47,7 +50,7 @@ export function pullLines(result: PullResult, scenario: Scenario, f: Format): Pu
     // They meet once the chambers have caught up with their ports; a chamber still filling, or squeezed by a valve
     // creeping open as rpm rises, keeps the settled boost a little off (sim-core README, the random suite).
     const off = m.settledBoostPa === null ? 0 : m.settledBoostPa - m.staticBoostAtSettledLiftPa
-    const gap = Math.abs(off) < 344.7 ? 'which the settled boost matches' : `${p(Math.abs(off))} ${off > 0 ? 'below' : 'above'} the settled boost while the chambers catch up`
+    const gap = Math.abs(off) < SETTLED_MATCH_PA ? 'which the settled boost matches' : `${p(Math.abs(off))} ${off > 0 ? 'below' : 'above'} the settled boost while the chambers catch up`
     lines.push({ key: 'static', label: 'Static balance at that lift', value: `${p(m.staticBoostAtSettledLiftPa)}, ${gap}` })
   }
   if (m.overshootPa !== null) lines.push({ key: 'overshoot', label: 'Overshoot', value: p(m.overshootPa) })
