@@ -50,7 +50,7 @@ export function pullLines(result: PullResult, scenario: Scenario, f: Format): Pu
     // They meet once the chambers have caught up with their ports; a chamber still filling, or squeezed by a valve
     // creeping open as rpm rises, keeps the settled boost a little off (sim-core README, the random suite).
     const off = m.settledBoostPa === null ? 0 : m.settledBoostPa - m.staticBoostAtSettledLiftPa
-    const gap = Math.abs(off) < SETTLED_MATCH_PA ? 'which the settled boost matches' : `${p(Math.abs(off))} ${off > 0 ? 'below' : 'above'} the settled boost while the chambers catch up`
+    const gap = Math.abs(off) < SETTLED_MATCH_PA ? 'which the settled boost matches' : `${f('pressure', Math.abs(off), 2)} ${off > 0 ? 'below' : 'above'} the settled boost while the chambers catch up`
     lines.push({ key: 'static', label: 'Static balance at that lift', value: `${p(m.staticBoostAtSettledLiftPa)}, ${gap}` })
   }
   if (m.overshootPa !== null) lines.push({ key: 'overshoot', label: 'Overshoot', value: p(m.overshootPa) })
