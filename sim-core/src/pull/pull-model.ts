@@ -12,7 +12,7 @@ import { steadyChamberPressurePa } from '../steady-chamber.ts'
 import { chamberPlumbing, type DutyShare, type SourceKind } from './chamber-plumbing.ts'
 import { chamberGas, exhaustGas } from './gases.ts'
 import type { HybridSystem } from './hybrid-integrator.ts'
-import { impliedTurbineAreaM2 } from './implied-turbine.ts'
+import { driveInterceptPa, impliedTurbine } from './implied-turbine.ts'
 
 /**
  * The mean-value model of one wide-open-throttle pull (MODEL.md §4 with the guards of §4a), as a hybrid
@@ -225,7 +225,9 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
   // The turbine that must pass the exhaust: in turbine mode the scenario's; in ratio mode the one the ratio implies at
   // the end of the pull (implied-turbine.ts), so that early in a pull, at low boost, the drive pressure is what the
   // engine's own exhaust flow needs rather than the ratio times a boost that is not there yet (MODEL.md §4b, start).
-  const floorTurbineArea = turbineMode ? turbineArea : impliedTurbineAreaM2(s)
+  const implied = turbineMode ? null : impliedTurbine(s)
+  const floorTurbineArea = implied === null ? turbineArea : implied.areaM2
+  const lineBoostPa = implied === null ? 0 : implied.lineBoostPa
   const downstreamKind = x.downstream.kind
   const restrictedCoeff = x.downstream.kind === 'restricted' ? x.downstream.coefficientPaPerKg2S2 : 0
 
@@ -492,7 +494,8 @@ export function buildPullModel(s: Scenario, options: PullModelOptions = {}): Pul
       // §4a: drive pressure never below the turbine outlet (taken at the whole exhaust flow), so the shaft is never driven backwards.
       const r = ratioKeys === null ? ratio : interpolateTable(ratioKeys, ratioValues!, rpm)
       const floor = pAmb + backCoeff * mexh * mexh
-      pem = pAmb + r * (boost > 0 ? boost : 0) + driveAtZeroPa
+      // The line's zero-boost pressure is spread over the boost below the crack (implied-turbine.ts).
+      pem = pAmb + (boost > 0 ? r * boost + driveInterceptPa(driveAtZeroPa, lineBoostPa, boost) : 0)
       // §4b: nor below what the exhaust flow needs to pass the turbine the ratio implies and the open gate. At low
       // boost this, not the ratio, sets the drive pressure, so a pull spools from the engine's own exhaust flow.
       if (passedAt(pem, gateArea, floor) < mexh) pem = driveToPass(mexh, gateArea, floor)

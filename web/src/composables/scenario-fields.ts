@@ -142,7 +142,7 @@ const FIELDS: Readonly<Record<string, FieldSpec>> = {
     suffix: ' : 1',
     hint: 'Exhaust drive pressure over boost (gauge); most setups sit between 1.0 and 2.0',
   },
-  'exhaust.driveAtZeroBoostPa': { label: 'Drive pressure at zero boost', quantity: 'pressure', hint: 'Exhaust back pressure before the turbo makes boost' },
+  'exhaust.driveAtZeroBoostPa': { label: 'Drive pressure at zero boost', quantity: 'pressure', hint: 'Where the drive line meets zero boost (a back-pressure gauge reading); a pull adds it in full from the crack up' },
   'exhaust.downstream.coefficientPaPerKg2S2': {
     label: 'Dump restriction',
     quantity: 'restriction',
