@@ -65,11 +65,14 @@ say(`dynamic pulls (odex):    ${perSecond(odexTime)}`)
 say(`  per pull: ${st.evaluations} evaluations, ${st.steps} steps (${st.rejected} rejected), ${st.restarts} restarts, ${st.auxiliaryEvaluations} guard checks and sampled outputs`)
 say(`  ${(st.evaluations / st.steps).toFixed(1)} evaluations per step; ${((odexTime.cpuS / st.evaluations) * 1e9).toFixed(0)} ns of the pull per evaluation, solver overhead included`)
 
+// The session a supply plans for (scenario.ts defaults); it does not enter a pull.
+const SESSION = { sessionPulls: 10, sessionArmedS: 1800, ventAfterEachPull: false }
+
 // The top port on a CO₂ bottle above its critical temperature: the bottle's pressure is evaluated in every step.
 const hotBottle: Scenario = {
   ...s,
   control: { kind: 'top-supply' },
-  supply: { kind: 'co2', regulatorSetpointPa: 68_948, regulatorDroopPa: 20_000, bottleVolumeM3: 0.0046, fillMassKg: 2.27, bottleTemperatureK: 318.15 },
+  supply: { kind: 'co2', regulatorSetpointPa: 68_948, regulatorDroopPa: 20_000, bottleVolumeM3: 0.0046, fillMassKg: 2.27, bottleTemperatureK: 318.15, ...SESSION },
 }
 for (let i = 0; i < 10; i++) runPull(hotBottle)
 const hotTime = medianTime(() => runPull(hotBottle), 10, 9)

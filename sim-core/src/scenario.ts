@@ -209,6 +209,14 @@ const regulator = {
   regulatorSetpointPa: nonNegative(2_000_000),
   /** Drop below the setpoint as the inlet falls towards it. */
   regulatorDroopPa: nonNegative(500_000).default(20_000),
+  // The session the gas budget plans for (pull/gas-budget.ts): a test-and-tune session of ten pulls over half an hour
+  // armed, the lines held between pulls (common practice, no source).
+  /** Pulls in a session. */
+  sessionPulls: integer(0, 10_000).default(10),
+  /** Time the system sits armed (solenoid powered, boost about zero) over a session. */
+  sessionArmedS: nonNegative(7 * 86_400).default(1_800),
+  /** Whether the top lines and chambers vent after each pull (a dump valve, or a controller that drops the supply). */
+  ventAfterEachPull: flag().default(false),
 }
 
 export const supplySchema = z.discriminatedUnion(

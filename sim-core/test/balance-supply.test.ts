@@ -24,6 +24,9 @@ function expectedCrack(s: Scenario, topPa: number): number {
   return (b.seatForceN + topPa * a.topM2) / (s.exhaust.ratio * a.valveM2 + a.bottomM2)
 }
 
+/** The session a supply plans for (scenario.ts defaults); the static balance does not read it. */
+const SESSION = { sessionPulls: 10, sessionArmedS: 1800, ventAfterEachPull: false }
+
 const co2 = (patch: Partial<Extract<Supply, { kind: 'co2' }>>): Supply => ({
   kind: 'co2',
   regulatorSetpointPa: psi(10),
@@ -31,6 +34,7 @@ const co2 = (patch: Partial<Extract<Supply, { kind: 'co2' }>>): Supply => ({
   bottleVolumeM3: 0.0046,
   fillMassKg: 2.27,
   bottleTemperatureK: 298.15,
+  ...SESSION,
   ...patch,
 })
 
@@ -92,6 +96,7 @@ describe('static top-port source of a compressor: min(setpoint, cut-in − droop
     cutOutPa: psi(150),
     ratedFlowM3PerS: 0.00047,
     maxPressurePa: psi(200),
+    ...SESSION,
   })
 
   it('delivers the setpoint when the tank at cut-in is above it', () => {

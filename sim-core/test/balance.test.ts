@@ -117,7 +117,17 @@ describe('computeBalance', () => {
     const s: Scenario = {
       ...base,
       control: { kind: 'both' },
-      supply: { kind: 'co2', regulatorSetpointPa: psi(10), regulatorDroopPa: 0, bottleVolumeM3: 0.0046, fillMassKg: 2.27, bottleTemperatureK: 298.15 },
+      supply: {
+        kind: 'co2',
+        regulatorSetpointPa: psi(10),
+        regulatorDroopPa: 0,
+        bottleVolumeM3: 0.0046,
+        fillMassKg: 2.27,
+        bottleTemperatureK: 298.15,
+        sessionPulls: 10,
+        sessionArmedS: 1800,
+        ventAfterEachPull: false,
+      },
     }
     const without = computeBalance(base)
     const withTop = computeBalance(s)

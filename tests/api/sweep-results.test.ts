@@ -62,8 +62,20 @@ const NUMBER_COLUMNS = [
   'max_lift_fraction',
   'gas_used_per_pull_kg',
   'pulls_per_supply',
+  'boost_swing_pa',
+  'armed_gas_kg_per_s',
+  'session_gas_kg',
 ] as const;
-const FLAG_COLUMNS = ['over_boost_limit', 'held_open_by_drive', 'supply_below_setpoint', 'past_zero_flow_line', 'not_settled'] as const;
+const FLAG_COLUMNS = [
+  'over_boost_limit',
+  'held_open_by_drive',
+  'supply_below_setpoint',
+  'past_zero_flow_line',
+  'not_settled',
+  'hunting',
+  'port_lag',
+  'target_unreachable',
+] as const;
 
 /** A value for column c of point i: a few distinct values (so ties), and null on some points. */
 function valueOf(c: number, i: number): number | null {
@@ -336,11 +348,17 @@ const METRIC_SORTS: [string, string][] = [
   ['maxLiftFraction', 'max_lift_fraction'],
   ['gasUsedPerPullKg', 'gas_used_per_pull_kg'],
   ['pullsPerSupply', 'pulls_per_supply'],
+  ['boostSwingPa', 'boost_swing_pa'],
+  ['armedGasKgPerS', 'armed_gas_kg_per_s'],
+  ['sessionGasKg', 'session_gas_kg'],
   ['overBoostLimit', 'over_boost_limit'],
   ['heldOpenByDrive', 'held_open_by_drive'],
   ['supplyBelowSetpoint', 'supply_below_setpoint'],
   ['pastZeroFlowLine', 'past_zero_flow_line'],
   ['notSettled', 'not_settled'],
+  ['hunting', 'hunting'],
+  ['portLag', 'port_lag'],
+  ['targetUnreachable', 'target_unreachable'],
 ];
 
 const AXES_3: Axis[] = [
@@ -400,7 +418,7 @@ describe('GET /api/sweeps/:id/points', () => {
       error: 'the pull stopped early (max-steps)',
       metrics: expect.objectContaining({ crackBoostPa: stored[7]!.crack_boost_pa, settledBoostPa: stored[7]!.settled_boost_pa, notSettled: stored[7]!.not_settled }),
     });
-    expect(Object.keys(first.metrics)).toHaveLength(19);
+    expect(Object.keys(first.metrics)).toHaveLength(25);
   });
 
   it('pages through every point in index order, both ways', async () => {
@@ -504,8 +522,9 @@ describe('GET /api/sweeps/:id/points.csv', () => {
     expect(lines[0]).toBe(
       'index,supply.regulatorSetpointPa (Pa),status,dynamic status,crack boost in the pull (Pa),peak boost (Pa),settled boost (Pa),' +
         'static boost at settled lift (Pa),overshoot (Pa),time to 90 % boost (s),creep (Pa),peak drive pressure (Pa),drive-to-boost ratio seen,' +
-        'maximum lift fraction,gas used per pull (kg),pulls per bottle or tank,over boost limit,held open by drive pressure,supply below setpoint,' +
-        'past zero-flow line,not settled,error',
+        'maximum lift fraction,gas used per pull (kg),pulls per bottle or tank,boost swing after the crack (Pa),gas passed while armed (kg/s),' +
+        'gas for the planned session (kg),over boost limit,held open by drive pressure,supply below setpoint,past zero-flow line,not settled,' +
+        'boost hunts,port lag,target out of reach,error',
     );
     expect(si.text).toContain(',"pressure ""spiked"", then\nfell"\r\n');
     const rows = parseCsv(si.text) as string[][];
@@ -514,12 +533,13 @@ describe('GET /api/sweeps/:id/points.csv', () => {
     expect(rows[2]!.at(-1)).toBe(`'=HYPERLINK("x")`);
     expect(rows[4]!.at(-1)).toBe('plain');
     expect(rows[1]![1]).toBe('60000');
-    expect(['true', 'false']).toContain(rows[2]![16]);
+    expect(['true', 'false']).toContain(rows[2]![19]);
 
     const metric = await request(ctx.app).get(`/api/sweeps/${sweepId}/points.csv`).query({ units: 'metric' }).set(bearer(tokens.analyst)).buffer(true);
     const metricRows = parseCsv(metric.text) as string[][];
     expect(metricRows[0]!.slice(0, 5)).toEqual(['index', 'supply.regulatorSetpointPa (kPa)', 'status', 'dynamic status', 'crack boost in the pull (kPa)']);
     expect(metricRows[0]).toContain('gas used per pull (g)');
+    expect(metricRows[0]).toContain('gas passed while armed (g/s)');
     expect(metricRows[1]![1]).toBe('60');
   });
 

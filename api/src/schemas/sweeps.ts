@@ -37,15 +37,30 @@ export const DYNAMIC_METRIC_COLUMNS = {
   maxLiftFraction: 'max_lift_fraction',
   gasUsedPerPullKg: 'gas_used_per_pull_kg',
   pullsPerSupply: 'pulls_per_supply',
+  boostSwingPa: 'boost_swing_pa',
+  armedGasKgPerS: 'armed_gas_kg_per_s',
+  sessionGasKg: 'session_gas_kg',
   overBoostLimit: 'over_boost_limit',
   heldOpenByDrive: 'held_open_by_drive',
   supplyBelowSetpoint: 'supply_below_setpoint',
   pastZeroFlowLine: 'past_zero_flow_line',
   notSettled: 'not_settled',
+  hunting: 'hunting',
+  portLag: 'port_lag',
+  targetUnreachable: 'target_unreachable',
 } as const;
 
 /** Metrics stored as booleans. */
-export const FLAG_METRICS: ReadonlySet<string> = new Set(['overBoostLimit', 'heldOpenByDrive', 'supplyBelowSetpoint', 'pastZeroFlowLine', 'notSettled']);
+export const FLAG_METRICS: ReadonlySet<string> = new Set([
+  'overBoostLimit',
+  'heldOpenByDrive',
+  'supplyBelowSetpoint',
+  'pastZeroFlowLine',
+  'notSettled',
+  'hunting',
+  'portLag',
+  'targetUnreachable',
+]);
 
 export const METRIC_COLUMNS = { ...STATIC_METRIC_COLUMNS, ...DYNAMIC_METRIC_COLUMNS } as const;
 export type SurfaceMetric = keyof typeof METRIC_COLUMNS;

@@ -26,11 +26,17 @@ const METRIC_HEADINGS: Record<SurfaceMetric, { label: string; quantity: Quantity
   maxLiftFraction: { label: 'maximum lift fraction', quantity: 'ratio' },
   gasUsedPerPullKg: { label: 'gas used per pull', quantity: 'gasMass' },
   pullsPerSupply: { label: 'pulls per bottle or tank', quantity: 'plain' },
+  boostSwingPa: { label: 'boost swing after the crack', quantity: 'pressure' },
+  armedGasKgPerS: { label: 'gas passed while armed', quantity: 'massFlow' },
+  sessionGasKg: { label: 'gas for the planned session', quantity: 'gasMass' },
   overBoostLimit: { label: 'over boost limit', quantity: 'flag' },
   heldOpenByDrive: { label: 'held open by drive pressure', quantity: 'flag' },
   supplyBelowSetpoint: { label: 'supply below setpoint', quantity: 'flag' },
   pastZeroFlowLine: { label: 'past zero-flow line', quantity: 'flag' },
   notSettled: { label: 'not settled', quantity: 'flag' },
+  hunting: { label: 'boost hunts', quantity: 'flag' },
+  portLag: { label: 'port lag', quantity: 'flag' },
+  targetUnreachable: { label: 'target out of reach', quantity: 'flag' },
 };
 
 /** Each quantity in SI, beside sim-core's US and metric display units. */

@@ -12,6 +12,9 @@ export const FLAG_TEXT: Record<keyof PullFlags, string> = {
   pastZeroFlowLine: "boost reached the compressor's zero-flow line (surge risk)",
   neverOpened: 'boost never opened the valve',
   notSettled: 'not settled: boost or lift still scatter in the settling window',
+  hunting: 'boost hunts: it swings more than 1 psi about its trend through two or more cycles',
+  portLag: 'port lag: the chambers trailed their ports, so the gate cracked late',
+  targetUnreachable: "the closed loop's target is outside what the gate holds between its duty limits",
   supplyKeepsUp: 'the compressor keeps up with the draw for good',
 }
 

@@ -51,6 +51,9 @@ const FLAG_SHORT: Partial<Record<keyof PullFlags, string>> = {
   pastZeroFlowLine: 'surge risk',
   neverOpened: 'never opened',
   notSettled: 'not settled',
+  hunting: 'hunts',
+  portLag: 'port lag',
+  targetUnreachable: 'target out of reach',
 }
 
 function flagText(flags: PullFlags): string {

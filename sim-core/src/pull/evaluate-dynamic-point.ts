@@ -1,6 +1,7 @@
 import type { Scenario } from '../scenario.ts'
 import type { HybridOutcome } from './hybrid-integrator.ts'
 import type { PullFlags } from './pull-result.ts'
+import { gasBudget } from './gas-budget.ts'
 import { runPull } from './run-pull.ts'
 
 export type DynamicPointStatus = 'ok' | 'never-opens' | 'open-at-zero-boost' | 'failed'
@@ -22,6 +23,12 @@ export interface DynamicPointResult {
   maxLiftFraction: number | null
   gasUsedPerPullKg: number | null
   pullsPerSupply: number | null
+  /** Peak-to-peak swing of boost about its trend after the crack. */
+  boostSwingPa: number | null
+  /** What a regulated supply passes while armed at zero boost, every gate (gas budget); null on boost. */
+  armedGasKgPerS: number | null
+  /** The gas of the scenario's planned session (its pulls and armed time); null on boost. */
+  sessionGasKg: number | null
   flags: PullFlags
   evaluations: number
 }
@@ -39,6 +46,7 @@ export function evaluateDynamicPoint(s: Scenario): DynamicPointResult {
       : pull.flags.neverOpened
         ? 'never-opens'
         : 'ok'
+  const budget = ok ? gasBudget(s, pull) : null
   return {
     status,
     outcome: pull.stats.outcome,
@@ -54,6 +62,9 @@ export function evaluateDynamicPoint(s: Scenario): DynamicPointResult {
     maxLiftFraction: finiteOrNull(m.maxLiftFraction),
     gasUsedPerPullKg: finiteOrNull(m.gasUsedPerPullKg),
     pullsPerSupply: finiteOrNull(m.pullsPerSupply),
+    boostSwingPa: finiteOrNull(m.boostSwingPa),
+    armedGasKgPerS: budget === null ? null : finiteOrNull(budget.armedKgPerS),
+    sessionGasKg: budget === null ? null : finiteOrNull(budget.session.kg),
     flags: pull.flags,
     evaluations: pull.stats.evaluations,
   }

@@ -19,14 +19,18 @@ import { co2MinimumUsableMassKg } from './supply-endurance.ts'
 export interface SessionPlan {
   /** Pulls in the session. */
   pulls: number
-  /** Minutes the system sits armed (solenoid powered, boost about zero) between and around the pulls. */
-  armedMinutes: number
+  /** Time the system sits armed (solenoid powered, boost about zero) between and around the pulls, s. */
+  armedS: number
   /** Whether the top lines and chambers vent after each pull (a dump valve, or a controller that drops the supply). */
   ventAfterEachPull: boolean
 }
 
-/** A test-and-tune session: ten pulls over half an hour armed, the lines held between pulls (common practice, no source). */
-export const DEFAULT_SESSION: Readonly<SessionPlan> = Object.freeze({ pulls: 10, armedMinutes: 30, ventAfterEachPull: false })
+/** The session a scenario's supply plans for (its sessionPulls, sessionArmedS, ventAfterEachPull; defaults in scenario.ts). */
+export function sessionPlanOf(s: Scenario): SessionPlan | null {
+  const supply = s.supply
+  if (supply.kind === 'boost') return null
+  return { pulls: supply.sessionPulls, armedS: supply.sessionArmedS, ventAfterEachPull: supply.ventAfterEachPull }
+}
 
 export interface GasBudget {
   /** Gas one pull costs, every gate: drawn during the pull and refilling the chambers after it, kg. */
@@ -93,17 +97,18 @@ function heldKg(s: Scenario): number {
  * The gas budget of a scenario's regulated supply from one of its pulls, or null when boost itself feeds the ports.
  * Throws a RangeError naming the field for a session plan that cannot be.
  */
-export function gasBudget(s: Scenario, pull: PullResult, plan: SessionPlan = DEFAULT_SESSION): GasBudget | null {
-  if (!(Number.isInteger(plan.pulls) && plan.pulls >= 0)) throw new RangeError(`plan.pulls must be a whole number of at least 0, not ${plan.pulls}`)
-  if (!(plan.armedMinutes >= 0 && Number.isFinite(plan.armedMinutes))) {
-    throw new RangeError(`plan.armedMinutes must be a number of at least 0, not ${plan.armedMinutes}`)
-  }
+export function gasBudget(s: Scenario, pull: PullResult, given?: SessionPlan): GasBudget | null {
+  const plan = given ?? sessionPlanOf(s)
   const supply = s.supply
-  if (supply.kind === 'boost') return null
+  if (supply.kind === 'boost' || plan === null) return null
+  if (!(Number.isInteger(plan.pulls) && plan.pulls >= 0)) throw new RangeError(`plan.pulls must be a whole number of at least 0, not ${plan.pulls}`)
+  if (!(plan.armedS >= 0 && Number.isFinite(plan.armedS))) {
+    throw new RangeError(`plan.armedS must be a number of at least 0, not ${plan.armedS}`)
+  }
   const perPullKg = pull.metrics.gasUsedPerPullKg ?? 0
   const armedKgPerS = armedFlowKgS(s)
   const held = heldKg(s)
-  const kg = plan.pulls * (perPullKg + (plan.ventAfterEachPull ? held : 0)) + plan.armedMinutes * 60 * armedKgPerS
+  const kg = plan.pulls * (perPullKg + (plan.ventAfterEachPull ? held : 0)) + plan.armedS * armedKgPerS
   let shareOfBottle: number | null = null
   let tankRecoveryS: number | null = null
   if (supply.kind === 'co2') {

@@ -28,10 +28,18 @@ export const SETTLED_LIFT_SCATTER = 0.02
 /** Boost short of its target by more than this (0.5 psi) when drive pressure alone opens the valve is flagged. */
 export const HELD_OPEN_MARGIN_PA = 3447
 
+/**
+ * Boost that swings more than this (1 psi peak to peak, about its trend) in the settled window, through at least two
+ * whole cycles, hunts: a tuner sees it on a gauge and in a log (common practice, no source).
+ */
+export const HUNTING_SWING_PA = 6894.757
+/** Whole cycles about the trend that make a swing a hunt rather than one overshoot dying away. */
+export const HUNTING_CYCLES = 2
+
 const mean = (v: readonly number[]) => v.reduce((a, b) => a + b, 0) / v.length
 
-/** RMS residual of `v` about its least-squares line over `t`. */
-function scatterAboutLine(t: readonly number[], v: readonly number[]): number {
+/** Residuals of `v` about its least-squares line over `t`. */
+function aboutLine(t: readonly number[], v: readonly number[]): number[] {
   const n = t.length
   const tm = mean(t)
   const vm = mean(v)
@@ -42,9 +50,33 @@ function scatterAboutLine(t: readonly number[], v: readonly number[]): number {
     stv += (t[i]! - tm) * (v[i]! - vm)
   }
   const slope = stt > 0 ? stv / stt : 0
-  let ss = 0
-  for (let i = 0; i < n; i++) ss += (v[i]! - vm - slope * (t[i]! - tm)) ** 2
-  return Math.sqrt(ss / n)
+  return v.map((x, i) => x - vm - slope * (t[i]! - tm))
+}
+
+/** RMS residual of `v` about its least-squares line over `t`. */
+function scatterAboutLine(t: readonly number[], v: readonly number[]): number {
+  const r = aboutLine(t, v)
+  return Math.sqrt(r.reduce((a, x) => a + x * x, 0) / r.length)
+}
+
+/**
+ * How boost swings about its trend in the window: peak to peak, and whole cycles a second (crossings of the trend,
+ * with a hysteresis of a tenth of the swing so sampling noise does not count, over two a cycle).
+ */
+function swingAboutLine(t: readonly number[], v: readonly number[]): { swing: number; cyclesPerS: number; cycles: number } {
+  const r = aboutLine(t, v)
+  const swing = Math.max(...r) - Math.min(...r)
+  const band = 0.05 * swing
+  let side = 0
+  let crossings = 0
+  for (const x of r) {
+    const now = x > band ? 1 : x < -band ? -1 : 0
+    if (now !== 0 && side !== 0 && now !== side) crossings++
+    if (now !== 0) side = now
+  }
+  const cycles = crossings / 2
+  const span = t[t.length - 1]! - t[0]!
+  return { swing, cycles, cyclesPerS: span > 0 ? cycles / span : 0 }
 }
 
 /** First time the series reaches `level`, interpolated between samples; null when it never does. */
@@ -86,6 +118,8 @@ export function pullMetrics(
   let windowDrive = 0
   let windowBoost = 0
   let windowIndices: number[] = []
+  let boostSwingPa: number | null = null
+  let huntHz: number | null = null
   if (r.crack) {
     const start = r.crack.timeS + s.solver.settlingDelayS
     const idx: number[] = []
@@ -101,6 +135,9 @@ export function pullMetrics(
       windowBoost = settledBoostPa
       windowDrive = mean(idx.map((i) => series.drivePa[i]!))
       notSettled = scatterAboutLine(tw, bw) > SETTLED_BOOST_SCATTER_PA || scatterAboutLine(tw, xw) > SETTLED_LIFT_SCATTER * xMax
+      const swing = swingAboutLine(tw, bw)
+      boostSwingPa = swing.swing
+      if (swing.swing > HUNTING_SWING_PA && swing.cycles >= HUNTING_CYCLES) huntHz = swing.cyclesPerS
     }
   }
 
@@ -190,6 +227,8 @@ export function pullMetrics(
     overshootPa: settledBoostPa === null ? null : Math.max(0, peakBoostPa - settledBoostPa),
     timeTo90PercentS: settledBoostPa === null || settledBoostPa <= 0 ? null : firstReach(t, boost, 0.9 * settledBoostPa),
     creepPa,
+    boostSwingPa,
+    huntingHz: huntHz,
     peakDrivePa,
     driveRatioSeen,
     maxLiftFraction: Math.max(...lift) / xMax,
@@ -207,6 +246,9 @@ export function pullMetrics(
     pastZeroFlowLine,
     neverOpened: r.crack === null && !r.openAtStart,
     notSettled,
+    hunting: huntHz !== null,
+    portLag: false,
+    targetUnreachable: false,
     supplyKeepsUp: supply.keepsUp,
   }
   return { metrics, flags }

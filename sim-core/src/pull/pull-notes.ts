@@ -6,7 +6,7 @@ import type { PullMetrics, PullSeries } from './pull-result.ts'
 
 /**
  * What a tuner should read in a pull's numbers, in words (MODEL.md §4b): late cracks the plumbing causes, targets
- * a closed loop cannot hold, overshoot past a target and creep with the gate wide open. Each note says what was
+ * a closed loop cannot hold, overshoot past a target, boost that hunts and creep with the gate wide open. Each note says what was
  * seen and what usually causes it; none changes a number.
  */
 
@@ -34,8 +34,17 @@ export function chamberLagAsBoostPa(s: Scenario, series: PullSeries, i: number):
   return lagForce / (ratio * a.valveM2)
 }
 
-export function pullNotes(s: Scenario, series: PullSeries, m: PullMetrics): string[] {
+/** A pull's notes, and the findings among them a sweep keeps as flags. */
+export interface PullFindings {
+  notes: string[]
+  portLag: boolean
+  targetUnreachable: boolean
+}
+
+export function pullNotes(s: Scenario, series: PullSeries, m: PullMetrics): PullFindings {
   const notes: string[] = []
+  let portLag = false
+  let targetUnreachable = false
   if (m.crackBoostPa !== null && m.crackTimeS !== null) {
     // The static crack under what the pull held at its crack (the duty, what the regulator delivered, the ratio).
     const i = series.timeS.findIndex((t) => t >= m.crackTimeS!)
@@ -51,6 +60,7 @@ export function pullNotes(s: Scenario, series: PullSeries, m: PullMetrics): stri
       const late = crack.status === 'opens' ? m.crackBoostPa - crack.boostPa : 0
       // Only where the chambers' lag accounts for most of the late crack (the rest is the valve's own motion).
       if (late > PORT_LAG_NOTE_PA && lag > PORT_LAG_NOTE_PA && lag > 0.5 * late) {
+        portLag = true
         notes.push(
           `Port lag: the gate cracked at ${psi(m.crackBoostPa)}, ${psi(late)} above the static ` +
             `crack, because the actuator's chambers trailed their ports by about ${psi(lag)} of boost. Small hose bores, ` +
@@ -72,6 +82,7 @@ export function pullNotes(s: Scenario, series: PullSeries, m: PullMetrics): stri
     const floor = Math.min(...ends)
     const ceiling = Math.max(...ends)
     const unreachable = lowest < floor - 0.1 * PSI || highest > ceiling + 0.1 * PSI
+    targetUnreachable = unreachable
     if (lowest < floor - 0.1 * PSI) {
       notes.push(
         `The boost target of ${psi(lowest)} is below the ${psi(floor)} the gate holds at either duty limit: the loop ` +
@@ -93,11 +104,19 @@ export function pullNotes(s: Scenario, series: PullSeries, m: PullMetrics): stri
       )
     }
   }
+  if (m.huntingHz !== null && m.boostSwingPa !== null) {
+    notes.push(
+      `Boost hunts: it swings ${psi(m.boostSwingPa)} peak to peak, about ${m.huntingHz.toFixed(1)} times a second, ` +
+        `after the crack. The gate and its chambers keep answering each other late: larger port plumbing, a stiffer ` +
+        `spring, or in closed loop gentler gains usually calm it. A model of the valve's mean motion; a real gate's ` +
+        `friction may hide a small swing or its own chatter add to it.`,
+    )
+  }
   if (m.creepPa !== null && m.creepPa > CREEP_NOTE_PA) {
     notes.push(
       `Creep: boost rose ${psi(m.creepPa)} with the gate on its full-lift stop. The gate cannot pass enough exhaust at ` +
         `this drive pressure; a larger valve, more lift or a larger turbine housing holds boost flat.`,
     )
   }
-  return notes
+  return { notes, portLag, targetUnreachable }
 }

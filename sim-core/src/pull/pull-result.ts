@@ -38,6 +38,10 @@ export interface PullMetrics {
   timeTo90PercentS: number | null
   /** Boost rise while the valve sat fully open; null when it never reached full lift. */
   creepPa: number | null
+  /** Peak-to-peak swing of boost about its trend in the settling window; null without a window. */
+  boostSwingPa: number | null
+  /** Cycles a second of a hunt (see flags.hunting); null when boost does not hunt. */
+  huntingHz: number | null
   peakDrivePa: number
   /** Drive over boost (gauge over gauge) in the settling window, or at peak boost without one. */
   driveRatioSeen: number | null
@@ -76,6 +80,12 @@ export interface PullFlags {
   neverOpened: boolean
   /** Boost or lift still scatter in the settling window, or there is no window to speak of. */
   notSettled: boolean
+  /** Boost swings more than 1 psi about its trend, through two or more cycles, in the settling window. */
+  hunting: boolean
+  /** The pull cracked more than 0.3 psi above the static crack because the chambers trailed their ports. */
+  portLag: boolean
+  /** A closed loop's target lies outside what the gate holds between its duty limits. */
+  targetUnreachable: boolean
   /** A compressor-fed supply keeps up with the draw indefinitely. */
   supplyKeepsUp: boolean
 }

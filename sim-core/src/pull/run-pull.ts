@@ -146,7 +146,10 @@ export function runPull(s: Scenario, options: RunPullOptions = {}): PullResult {
   const notes = [BOOST_CAUTION]
   if (s.exhaust.mode === 'ratio') notes.unshift(RATIO_MODE_NOTE)
   if (s.supply.kind !== 'boost') notes.push(GAS_CAUTION)
-  notes.push(...pullNotes(s, series, metrics))
+  const findings = pullNotes(s, series, metrics)
+  notes.push(...findings.notes)
+  flags.portLag = findings.portLag
+  flags.targetUnreachable = findings.targetUnreachable
   if (s.supply.kind === 'co2') {
     const bottle = co2BottleState({ volumeM3: s.supply.bottleVolumeM3, massKg: s.supply.fillMassKg, temperatureK: s.supply.bottleTemperatureK })
     if (bottle.warning) notes.push(bottle.warning)

@@ -3,7 +3,6 @@ import {
   chamberPlumbing,
   chamberVolumes,
   co2GasDensityKgM3,
-  DEFAULT_SESSION,
   gasBudget,
   orificeFlowKgS,
   flowFunctionFor,
@@ -44,14 +43,18 @@ describe('gas budget of a regulated supply', () => {
     const s = scenarioWith({ control: { kind: 'solenoid-3port', chamber: 'top', duty: 0.5 }, supply: co2Supply(15) })
     const pull = runPull(s)
     const day = gasBudget(s, pull)!
-    expect(day.session.plan).toEqual(DEFAULT_SESSION)
+    // The scenario's own session: ten pulls over half an hour armed by default (scenario.ts).
+    expect(day.session.plan).toEqual({ pulls: 10, armedS: 1800, ventAfterEachPull: false })
     expect(day.session.kg).toBeCloseTo(10 * day.perPullKg + 30 * 60 * day.armedKgPerS, 12)
     expect(day.session.emptiesBottle).toBe(false)
-    const long = gasBudget(s, pull, { pulls: 10, armedMinutes: 600, ventAfterEachPull: true })!
+    const long = gasBudget(s, pull, { pulls: 10, armedS: 600 * 60, ventAfterEachPull: true })!
     expect(long.session.kg).toBeCloseTo(10 * (day.perPullKg + day.heldKg) + 600 * 60 * day.armedKgPerS, 12)
     expect(long.session.shareOfBottle!).toBeGreaterThan(1)
     expect(long.session.emptiesBottle).toBe(true)
-    expect(() => gasBudget(s, pull, { pulls: -1, armedMinutes: 0, ventAfterEachPull: false })).toThrow(/plan\.pulls/)
+    // A plan written into the scenario is the one the budget takes.
+    const planned = { ...s, supply: { ...s.supply, sessionPulls: 3, sessionArmedS: 600, ventAfterEachPull: true } } as typeof s
+    expect(gasBudget(planned, pull)!.session.kg).toBeCloseTo(3 * (day.perPullKg + day.heldKg) + 600 * day.armedKgPerS, 12)
+    expect(() => gasBudget(s, pull, { pulls: -1, armedS: 0, ventAfterEachPull: false })).toThrow(/plan\.pulls/)
   })
 
   it('a compressor wins a pull back in seconds; boost as the source has no budget', () => {

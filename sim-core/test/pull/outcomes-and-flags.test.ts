@@ -131,6 +131,36 @@ describe('flags from a recorded pull', () => {
     expect(flagsOf(ringing).notSettled).toBe(true)
   })
 
+  it('calls a swing of more than 1 psi through two or more cycles a hunt, and measures its frequency', () => {
+    const metricsOf = (r: PullRecord) => pullMetrics(base, r, { pullsPerSupply: null, keepsUp: false, holdPa: null })
+    // A sine of 1.5 psi peak to peak at 4 Hz over the settling window (from 1.2 s, the 0.2 s delay after the crack).
+    const hunting = metricsOf(
+      record((r) => {
+        r.series.boostPa = r.series.boostPa.map((b, i) => b + psi(0.75) * Math.sin(2 * Math.PI * 4 * r.series.timeS[i]!))
+      }),
+    )
+    expect(hunting.flags.hunting).toBe(true)
+    // Peak to peak about the fitted trend: a part cycle at the window's end tilts the trend a little (within 10 %).
+    expect(Math.abs(hunting.metrics.boostSwingPa! / psi(1.5) - 1)).toBeLessThan(0.1)
+    // Two crossings a cycle over a window of 2.8 s: the count is whole cycles, so within one cycle over the window.
+    expect(Math.abs(hunting.metrics.huntingHz! - 4)).toBeLessThan(1 / 2.8)
+    // The same swing as one overshoot dying away (a single decaying bump) is no hunt.
+    const bump = metricsOf(
+      record((r) => {
+        r.series.boostPa = r.series.boostPa.map((b, i) => b + psi(1.5) * Math.exp(-(((r.series.timeS[i]! - 1.2) / 0.1) ** 2)))
+      }),
+    )
+    expect(bump.flags.hunting).toBe(false)
+    // A small ripple that never reaches 1 psi is no hunt either.
+    const ripple = metricsOf(
+      record((r) => {
+        r.series.boostPa = r.series.boostPa.map((b, i) => b + psi(0.3) * Math.sin(2 * Math.PI * 4 * r.series.timeS[i]!))
+      }),
+    )
+    expect(ripple.flags.hunting).toBe(false)
+    expect(ripple.metrics.huntingHz).toBeNull()
+  })
+
   it('measures creep over a stretch at full lift', () => {
     const creeping = record((r) => {
       r.atFullLift = r.atFullLift.map((_, i) => i >= 200)
@@ -147,19 +177,22 @@ describe('notes a tuner reads (MODEL.md §4b)', () => {
 
   it('says nothing beyond the cautions for the default scenario', () => {
     const r = runPull(base)
-    for (const start of ['Port lag', 'Boost peaked', 'The boost target', 'Creep']) expect(noteOf(r, start)).toBeUndefined()
+    for (const start of ['Port lag', 'Boost peaked', 'The boost target', 'Boost hunts', 'Creep']) expect(noteOf(r, start)).toBeUndefined()
+    expect(r.flags).toMatchObject({ portLag: false, targetUnreachable: false, hunting: false })
   })
 
   it('names port lag when chambers that trail their ports crack the gate late, and the overshoot that follows', () => {
     // A 20 psi CO₂ top chamber for a 12 psi target: it must vent through the solenoid before the gate can crack.
     const r = runPull(scenarioWith({ control: { kind: 'closed-loop', targetBoostPa: psi(12) }, supply: co2Supply(20) }))
     expect(noteOf(r, 'Port lag')).toMatch(/above the static crack/)
+    expect(r.flags.portLag).toBe(true)
     expect(noteOf(r, 'Boost peaked')).toMatch(/over the 12\.0 psi \(83 kPa\) target/)
   })
 
   it('says when a closed loop’s target lies below what the gate holds at either duty limit', () => {
     const r = runPull(scenarioWith({ control: { kind: 'closed-loop', targetBoostPa: psi(5) } }))
     expect(noteOf(r, 'The boost target')).toMatch(/below the .* the gate holds at either duty limit/)
+    expect(r.flags.targetUnreachable).toBe(true)
     // An unreachable target is the note; the overshoot past it is not a second one.
     expect(noteOf(r, 'Boost peaked')).toBeUndefined()
   })

@@ -222,7 +222,7 @@ function summary(rows: readonly CaseRecord[]): string {
   const outcomes = (Object.keys(DOCUMENTED_OUTCOMES) as HybridOutcome[])
     .map((o) => `${o} ${ran.filter((r) => r.result!.stats.outcome === o).length}`)
     .join(', ')
-  const flag = (name: 'neverOpened' | 'notSettled' | 'heldOpenByDrive' | 'pastZeroFlowLine') =>
+  const flag = (name: 'neverOpened' | 'notSettled' | 'heldOpenByDrive' | 'pastZeroFlowLine' | 'hunting' | 'portLag') =>
     ran.filter((r) => r.result!.flags[name]).length
   const openAtStart = ran.filter((r) => r.result!.metrics.openAtStart).length
   const thrownKinds = new Map<string, number>()
@@ -248,7 +248,7 @@ function summary(rows: readonly CaseRecord[]): string {
     ...[...thrownKinds].map(([kind, n]) => `    threw ${n}× ${kind}`),
     `  settled ${settled.length} (not flagged notSettled, with a settled boost); never opened ${flag('neverOpened')}; ` +
       `open at start ${openAtStart}; flagged notSettled ${flag('notSettled')}; held open by drive ${flag('heldOpenByDrive')}; ` +
-      `past the zero-flow line ${flag('pastZeroFlowLine')}`,
+      `past the zero-flow line ${flag('pastZeroFlowLine')}; hunting ${flag('hunting')}; port lag ${flag('portLag')}`,
     `  |difference|, psi                     n   median      p95    worst`,
     distributionLine('settled − static, window at rest', rows.filter((r) => r.notAtRest === null), (r) => r.settledMinusStaticPsi, SETTLED_VS_STATIC_PSI),
     distributionLine('settled − static, not at rest', rows.filter((r) => r.notAtRest !== null), (r) => r.settledMinusStaticPsi, SETTLED_VS_STATIC_PSI),

@@ -79,11 +79,17 @@ export type DynamicMetric =
   | 'maxLiftFraction'
   | 'gasUsedPerPullKg'
   | 'pullsPerSupply'
+  | 'boostSwingPa'
+  | 'armedGasKgPerS'
+  | 'sessionGasKg'
   | 'overBoostLimit'
   | 'heldOpenByDrive'
   | 'supplyBelowSetpoint'
   | 'pastZeroFlowLine'
   | 'notSettled'
+  | 'hunting'
+  | 'portLag'
+  | 'targetUnreachable'
 
 export type SurfaceMetric = StaticMetric | DynamicMetric
 

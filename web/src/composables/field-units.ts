@@ -8,6 +8,7 @@ import { displayUnits, formatQuantity, fromSI, toSI, units, type Quantity, type 
  * - `restriction`: a dump restriction K of p = K·ṁ², Pa per (kg/s)².
  * - `gainP` duty per Pa, `gainI` duty per (Pa·s), `gainD` duty·s per Pa: a controller's gains.
  * - `inertia`: a shaft's moment of inertia, kg·m².
+ * - `minutes`: a stretch of a working day, seconds in the scenario, shown in minutes.
  * - `plain`: a number without a unit (a coefficient, a count).
  */
 export type FieldQuantity =
@@ -19,6 +20,7 @@ export type FieldQuantity =
   | 'gainI'
   | 'gainD'
   | 'inertia'
+  | 'minutes'
   | 'plain'
 
 const unit = (symbol: string, factor: number): Unit => Object.freeze({ symbol, factor, offset: 0 })
@@ -46,6 +48,7 @@ const LOCAL: Readonly<Record<Exclude<FieldQuantity, Quantity>, Readonly<Record<U
     us: unit('lb·in²', units.lb.factor * units.in.factor ** 2),
     metric: unit('kg·cm²', units.kg.factor * units.cm2.factor),
   },
+  minutes: { us: unit('min', 60), metric: unit('min', 60) },
   plain: { us: units.ratio, metric: units.ratio },
 }
 

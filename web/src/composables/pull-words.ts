@@ -101,7 +101,9 @@ function budgetLines(result: PullResult, scenario: Scenario, f: Format): PullLin
   const { plan, kg, shareOfBottle, emptiesBottle } = budget.session
   const share =
     shareOfBottle === null ? '' : emptiesBottle ? ': more than a full bottle' : `, ${f('percent', shareOfBottle, shareOfBottle < 0.01 ? 1 : 0)} of a full bottle`
-  lines.push({ key: 'session', label: `A session of ${plan.pulls} pulls, ${plan.armedMinutes} min armed`, value: `${g(kg)}${share}` })
+  const armed = plan.armedS % 60 === 0 ? `${plan.armedS / 60} min` : f('time', plan.armedS)
+  const vented = plan.ventAfterEachPull ? ', lines vented after each pull' : ''
+  lines.push({ key: 'session', label: `A session of ${plan.pulls} pulls, ${armed} armed${vented}`, value: `${g(kg)}${share}` })
   if (budget.tankRecoveryS !== null && Number.isFinite(budget.tankRecoveryS)) {
     lines.push({ key: 'recovery', label: 'Compressor wins a pull back in', value: f('time', budget.tankRecoveryS) })
   }

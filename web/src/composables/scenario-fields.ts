@@ -134,6 +134,13 @@ const FIELDS: Readonly<Record<string, FieldSpec>> = {
   'supply.cutOutPa': { label: 'Cuts out at', name: 'Compressor cut-out pressure', quantity: 'pressure' },
   'supply.ratedFlowM3PerS': { label: 'Rated flow', name: 'Compressor rated flow', quantity: 'volumeFlow', hint: 'Free air delivered at zero pressure' },
   'supply.maxPressurePa': { label: 'Flow stops at', name: 'Compressor top pressure', quantity: 'pressure', hint: 'Pressure where the compressor delivers nothing' },
+  'supply.sessionPulls': { label: 'Pulls in a session', name: 'Session pulls', quantity: 'plain', hint: 'What the gas budget plans for' },
+  'supply.sessionArmedS': {
+    label: 'Armed over a session',
+    name: 'Session armed time',
+    quantity: 'minutes',
+    hint: 'Time the system sits armed at about zero boost, pulls included',
+  },
   'supply.initialTankPa': { label: 'Tank at the start', name: 'Tank pressure at the start', quantity: 'pressure', optional: true, hint: 'Empty: full, at cut-out' },
 
   'exhaust.ratio': {

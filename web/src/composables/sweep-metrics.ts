@@ -27,11 +27,17 @@ const DYNAMIC: readonly (SweepMetric & { key: DynamicMetric })[] = [
   { key: 'maxLiftFraction', label: 'Largest lift', quantity: 'percent' },
   { key: 'gasUsedPerPullKg', label: 'Gas per pull', quantity: 'gasMass' },
   { key: 'pullsPerSupply', label: 'Pulls per bottle or tank', quantity: 'plain' },
+  { key: 'sessionGasKg', label: 'Gas for the planned session', quantity: 'gasMass' },
+  { key: 'armedGasKgPerS', label: 'Gas passed while armed', quantity: 'massFlow' },
+  { key: 'boostSwingPa', label: 'Boost swing after the crack', quantity: 'pressure' },
   { key: 'overBoostLimit', label: 'Over the boost limit', quantity: 'plain', flag: true },
   { key: 'heldOpenByDrive', label: 'Held open by drive pressure', quantity: 'plain', flag: true },
   { key: 'supplyBelowSetpoint', label: 'Supply below the setpoint', quantity: 'plain', flag: true },
   { key: 'pastZeroFlowLine', label: 'Past the zero-flow line', quantity: 'plain', flag: true },
   { key: 'notSettled', label: 'Boost never settled', quantity: 'plain', flag: true },
+  { key: 'hunting', label: 'Boost hunts', quantity: 'plain', flag: true },
+  { key: 'portLag', label: 'Port lag', quantity: 'plain', flag: true },
+  { key: 'targetUnreachable', label: 'Target out of reach', quantity: 'plain', flag: true },
 ]
 
 /** The stored metrics a sweep of `level` has, in the order a picker lists them. */

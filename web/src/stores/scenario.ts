@@ -282,6 +282,12 @@ export const useScenarioStore = defineStore('scenario', () => {
     d.supply = supplySchema.parse(kind === 'boost' ? { kind } : { kind, regulatorSetpointPa: setpoint })
   }
 
+  /** Whether the session the gas budget plans for vents the supply's lines after each pull. */
+  function setVentAfterEachPull(value: boolean): void {
+    const supply = draft.value?.supply
+    if (supply && supply.kind !== 'boost') supply.ventAfterEachPull = value
+  }
+
   function setDownstreamKind(kind: Downstream['kind']): void {
     const e = draft.value?.exhaust
     if (!e) return
@@ -378,6 +384,7 @@ export const useScenarioStore = defineStore('scenario', () => {
     setControlOption,
     setSupplyKind,
     setDownstreamKind,
+    setVentAfterEachPull,
     setChoice,
     addSpring,
     removeSpring,

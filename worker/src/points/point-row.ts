@@ -37,11 +37,17 @@ export interface PointRow {
   max_lift_fraction: number | null;
   gas_used_per_pull_kg: number | null;
   pulls_per_supply: number | null;
+  boost_swing_pa: number | null;
+  armed_gas_kg_per_s: number | null;
+  session_gas_kg: number | null;
   over_boost_limit: boolean | null;
   held_open_by_drive: boolean | null;
   supply_below_setpoint: boolean | null;
   past_zero_flow_line: boolean | null;
   not_settled: boolean | null;
+  hunting: boolean | null;
+  port_lag: boolean | null;
+  target_unreachable: boolean | null;
   /** What the typed columns leave out: the integrator's outcome and work, the remaining flags (jsonb). */
   result: string | null;
 }
@@ -68,11 +74,17 @@ export const POINT_ROW_UPDATE_COLUMNS = [
   'max_lift_fraction',
   'gas_used_per_pull_kg',
   'pulls_per_supply',
+  'boost_swing_pa',
+  'armed_gas_kg_per_s',
+  'session_gas_kg',
   'over_boost_limit',
   'held_open_by_drive',
   'supply_below_setpoint',
   'past_zero_flow_line',
   'not_settled',
+  'hunting',
+  'port_lag',
+  'target_unreachable',
   'result',
   'updated_at',
 ] as const;
@@ -118,11 +130,17 @@ function emptyRow(sweepId: string, axes: readonly ResolvedAxis[], index: number)
     max_lift_fraction: null,
     gas_used_per_pull_kg: null,
     pulls_per_supply: null,
+    boost_swing_pa: null,
+    armed_gas_kg_per_s: null,
+    session_gas_kg: null,
     over_boost_limit: null,
     held_open_by_drive: null,
     supply_below_setpoint: null,
     past_zero_flow_line: null,
     not_settled: null,
+    hunting: null,
+    port_lag: null,
+    target_unreachable: null,
     result: null,
   };
 }
@@ -142,11 +160,17 @@ function dynamicColumns(result: DynamicPointResult): Partial<PointRow> {
     max_lift_fraction: finiteOrNull(result.maxLiftFraction),
     gas_used_per_pull_kg: finiteOrNull(result.gasUsedPerPullKg),
     pulls_per_supply: finiteOrNull(result.pullsPerSupply),
+    boost_swing_pa: finiteOrNull(result.boostSwingPa),
+    armed_gas_kg_per_s: finiteOrNull(result.armedGasKgPerS),
+    session_gas_kg: finiteOrNull(result.sessionGasKg),
     over_boost_limit: result.flags.overBoostLimit,
     held_open_by_drive: result.flags.heldOpenByDrive,
     supply_below_setpoint: result.flags.supplyBelowSetpoint,
     past_zero_flow_line: result.flags.pastZeroFlowLine,
     not_settled: result.flags.notSettled,
+    hunting: result.flags.hunting,
+    port_lag: result.flags.portLag,
+    target_unreachable: result.flags.targetUnreachable,
     result: JSON.stringify({ dynamic: { outcome: result.outcome, evaluations: result.evaluations, flags: result.flags } }),
   };
 }
