@@ -68,6 +68,39 @@ describe('pull panel', () => {
     expect(text(wrapper, 'pull-session')).toMatch(/ g, \d+ % of a full bottle$/)
   })
 
+  it('takes the session the supply card plans for: its pulls, armed time and venting', async () => {
+    const parsed = parseScenario({
+      ...defaultScenario(),
+      control: { kind: 'solenoid-3port', chamber: 'top', duty: 0.5 },
+      supply: { kind: 'co2', regulatorSetpointPa: 103_421, sessionPulls: 25, sessionArmedS: 5400, ventAfterEachPull: true },
+    })
+    if (!parsed.ok) throw new Error(`the CO₂ scenario is not valid: ${JSON.stringify(parsed.issues)}`)
+    const { wrapper } = await mountEditor(parsed.scenario, { withPull: true })
+    await settle()
+    expect(wrapper.find('[data-testid="pull-session"]').element.closest('div')?.parentElement?.textContent).toContain(
+      'A session of 25 pulls, 90 min armed, lines vented after each pull',
+    )
+    // What the form shows: the armed time in minutes, the venting ticked.
+    expect((wrapper.find('[data-testid="supply.sessionArmedS"] input').element as HTMLInputElement).value).toBe('90')
+    expect((wrapper.find('[data-testid="vent-after-each-pull"] input').element as HTMLInputElement).checked).toBe(true)
+  })
+
+  it('says, in turbine mode, what ratio the pull made beside the ratio the static figures use', async () => {
+    const base = defaultScenario()
+    const turbine = { ...base, exhaust: { ...base.exhaust, mode: 'turbine' as const } }
+    const { wrapper } = await mountEditor(turbine, { withPull: true })
+    await settle()
+    const seen = runPull(turbine).metrics.driveRatioSeen!
+    const line = text(wrapper, 'turbine-ratio')
+    expect(line).toContain(`made drive pressure ${formatQuantity('ratio', 'us', seen)} times boost`)
+    expect(line).toContain(`use the ${formatQuantity('ratio', 'us', base.exhaust.ratio)} entered`)
+    expect(line).toMatch(/At the pull's ratio the gate cracks at \d+\.\d psi\./)
+    // Ratio mode has no such line: there the ratio entered is the pull's own.
+    const ratio = await mountEditor(base, { withPull: true })
+    await settle()
+    expect(ratio.wrapper.find('[data-testid="turbine-ratio"]').exists()).toBe(false)
+  })
+
   it('plots every series on one shared time axis, with a hover that spans them all', async () => {
     const parsed = parseScenario({ ...defaultScenario(), control: { kind: 'both' }, supply: { kind: 'co2', regulatorSetpointPa: 68_948 } })
     if (!parsed.ok) throw new Error(`the CO₂ scenario is not valid: ${JSON.stringify(parsed.issues)}`)
