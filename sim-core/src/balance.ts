@@ -327,6 +327,17 @@ function inputsFor(s: Scenario, ratio: number, chambers: StaticChambers = static
 }
 
 /**
+ * The spring force that balances the pressure forces at boost b (MODEL.md §2 solved for the spring): the sum of
+ * drive, bottom, top and downstream forces, at the seat or at full lift (p_dn at the full-open flow), at a ratio.
+ * A spring of exactly this force (seat force at the seat, seat force + k·x_max at full lift) puts b_crack or b_full
+ * at b. Linear in nothing but exact: the chambers' divider and p_dn are evaluated at b itself.
+ */
+export function springForceAtBoost(s: Scenario, boostPa: number, atFullOpen: boolean, ratio: number = s.exhaust.ratio): number {
+  const inp = inputsFor(s, ratio)
+  return netForce(inp, 0, boostPa, downstreamPa(s, boostPa, atFullOpen))
+}
+
+/**
  * Boost that holds the valve at lift x: b_at(x), the spring at F0 + k·x; at the scenario's own ratio, or under the
  * conditions a pull held in its settling window.
  */

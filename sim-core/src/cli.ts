@@ -7,11 +7,13 @@ import { renderBalance } from './cli/balance-report.ts'
 import { faultLine, refusalLines, refusalOf, SweepPointError } from './cli/failures.ts'
 import { readJsonFile, readScenario, readSweep, type SweepFile } from './cli/input.ts'
 import { renderPull } from './cli/pull-report.ts'
+import { renderSolve } from './cli/solve-report.ts'
 import { renderSweep, runSweep } from './cli/sweep-report.ts'
 import { runPull } from './pull/index.ts'
+import { solveForTarget } from './solve/target-solve.ts'
 
 /**
- * `npm run sim -- <balance|pull|sweep> <file> [--json] [--units us|metric]`: the model from the command line.
+ * `npm run sim -- <balance|pull|sweep|solve> <file> [--json] [--units us|metric]`: the model from the command line.
  * Exit codes: 0 done (a pull that stopped early says so in its report), 1 bad input (file, schema, or a scenario
  * the model refuses), 2 wrong usage, 70 a fault in the tool. No exit prints a stack trace.
  */
@@ -62,6 +64,35 @@ async function pull(options: CliOptions, path: string, io: CliIo): Promise<numbe
   return 0
 }
 
+async function solve(options: CliOptions, path: string, io: CliIo): Promise<number> {
+  const read = await readJsonFile(path)
+  if (!read.ok) return reportIssues(io, options.file, 'scenario file', read.issues)
+  const scenario = readScenario(read.value)
+  if (!scenario.ok) return reportIssues(io, options.file, 'scenario', scenario.issues)
+  const ask = options.solve!
+  const result = solveForTarget(scenario.value, {
+    unknown: ask.unknown,
+    target: ask.target,
+    targetBoostPa: ask.targetBoostPa,
+    ...(ask.ratioBand === null ? {} : { ratioBand: ask.ratioBand }),
+  })
+  if (options.json) {
+    // SI, with the names the rest of the CLI's JSON uses; the scenario with the answer in is left to `balance`.
+    const { scenario: _withAnswer, ...rest } = result.status === 'solved' ? result : { ...result, scenario: undefined }
+    const named =
+      result.status === 'solved'
+        ? { ...rest, [VALUE_NAMES[ask.unknown]]: result.value }
+        : rest
+    io.stdout(`${json(named)}\n`)
+  } else {
+    io.stdout(`${renderSolve(basename(path), scenario.value, result, options.units)}\n`)
+  }
+  return 0
+}
+
+/** The SI name of each unknown's value in `solve --json`, as scenario fields are named. */
+const VALUE_NAMES = { 'seat-force': 'seatForceN', setpoint: 'setpointPa', 'bleed-fraction': 'bleedFraction', duty: 'duty' } as const
+
 async function sweep(options: CliOptions, path: string, io: CliIo): Promise<number> {
   const read = await readJsonFile(path)
   if (!read.ok) return reportIssues(io, options.file, 'sweep file', read.issues)
@@ -104,6 +135,8 @@ export async function main(argv: readonly string[], io: CliIo): Promise<number> 
         return await pull(options, path, io)
       case 'sweep':
         return await sweep(options, path, io)
+      case 'solve':
+        return await solve(options, path, io)
     }
   } catch (error) {
     return reportFailure(io, options, error)

@@ -10,5 +10,6 @@ export * from './engine.ts'
 export * from './compressor.ts'
 export * from './pull/index.ts'
 export * from './fit/index.ts'
+export * from './solve/target-solve.ts'
 // The quantity a scenario field holds, from the unit its name ends in (also what the CLI shows axes in).
 export { quantityOfField } from './cli/quantities.ts'

@@ -228,6 +228,59 @@ describe('sim sweep at the dynamic level', () => {
   })
 })
 
+describe('sim solve', () => {
+  const v8 = join(examples, 'v8-twin-co2-top-port.json')
+
+  it('prints the seat force and its bench crack pressure for a crack boost, read in psi', async () => {
+    const r = await run('solve', fourCylinder, '--for', 'seat-force', '--target', '12')
+    expect(r.code, r.stderr).toBe(0)
+    expect(r.stdout).toContain('The spring seat force for 12.0 psi of crack boost')
+    const s = await exampleScenario()
+    // Put the printed seat force back in: the balance cracks at 12 psi (to the printed 0.1 lbf).
+    const lbf = Number(/spring seat force\s+([\d.]+) lbf/.exec(r.stdout)![1])
+    const back = computeBalance({ ...s, springs: [{ from: 'seat', seatForceN: lbf * 4.448222, rateNPerM: s.springs[0]!.rateNPerM }] })
+    expect(back.crack.status === 'opens' && Math.abs(back.crack.boostPa / 6894.757 - 12)).toBeLessThan(0.01)
+    expect(r.stdout).toMatch(/bench crack pressure in this gate\s+[\d.]+ psi/)
+  })
+
+  it('prints SI with the CLI’s names under --json, and reads the target in kPa with --units metric', async () => {
+    const r = await run('solve', v8, '--for', 'setpoint', '--target', '124', '--units', 'metric', '--ratio-band', '1.4:1.8', '--json')
+    expect(r.code, r.stderr).toBe(0)
+    const out = JSON.parse(r.stdout)
+    expect(out).toMatchObject({ status: 'solved', unknown: 'setpoint', target: 'crack', targetBoostPa: 124_000 })
+    expect(out.setpointPa).toBe(out.value)
+    expect(out.band.map((b: { ratio: number }) => b.ratio)).toEqual([1.4, 1.8])
+    // The two ends of the band miss by as much on either side.
+    expect(out.band[0].boostPa - 124_000).toBeCloseTo(124_000 - out.band[1].boostPa, 3)
+  })
+
+  it('says when a target is out of reach, with the nearest value', async () => {
+    const r = await run('solve', v8, '--for', 'setpoint', '--target', '3')
+    expect(r.code).toBe(0)
+    expect(r.stdout).toMatch(/Out of reach: the target is below what the spring alone holds/)
+    expect(r.stdout).toMatch(/Nearest: regulator setpoint 0\.0 psi/)
+  })
+
+  it('exits 1 naming the field when the arrangement has no such unknown, and 2 for bad solve options', async () => {
+    const r = await run('solve', fourCylinder, '--for', 'duty', '--target', '12')
+    expect(r.code).toBe(1)
+    expect(r.stderr).toMatch(/control\.kind: must be a three- or four-port solenoid/)
+    for (const argv of [
+      ['solve', fourCylinder, '--target', '12'],
+      ['solve', fourCylinder, '--for', 'spring', '--target', '12'],
+      ['solve', fourCylinder, '--for', 'seat-force'],
+      ['solve', fourCylinder, '--for', 'seat-force', '--target', 'lots'],
+      ['solve', fourCylinder, '--for', 'seat-force', '--target', '12', '--ratio-band', '1.8:1.4'],
+      ['solve', fourCylinder, '--for', 'seat-force', '--target', '12', '--at', 'peak'],
+      ['balance', fourCylinder, '--for', 'seat-force'],
+    ]) {
+      const bad = await run(...argv)
+      expect(bad.code, argv.join(' ')).toBe(2)
+      expect(bad.stderr).toContain('Usage: npm run sim --')
+    }
+  })
+})
+
 describe('command line usage', () => {
   it('exits 2 with the usage for an unknown command, a missing file, bad units or an unknown option', async () => {
     for (const argv of [['frob', 'x.json'], ['balance'], ['balance', fourCylinder, '--units', 'imperial'], ['balance', fourCylinder, '--colour'], []]) {
