@@ -158,6 +158,18 @@ function slotFor(s: Scenario, unknown: SolveUnknown): UnknownSlot {
   }
 }
 
+/** The unknowns the scenario's arrangement has a place for (a setpoint needs a regulated supply on a port, a duty a solenoid). */
+export function unknownsFor(s: Scenario): SolveUnknown[] {
+  return SOLVE_UNKNOWNS.filter((unknown) => {
+    try {
+      slotFor(s, unknown)
+      return true
+    } catch {
+      return false
+    }
+  })
+}
+
 /** The static boost of an outcome, with "never opens" as a boost too high to matter and "open at zero" as ≤ 0. */
 const boostOf = (o: BoostOutcome): number => (o.status === 'never-opens' ? NEVER_OPENS_PA : o.boostPa)
 

@@ -14,6 +14,7 @@ import {
   type FieldIssue,
   type Scenario,
   type ScenarioInput,
+  type SolveUnknown,
   type Supply,
   type WastegateAreas,
 } from '@crackpoint/sim-core'
@@ -282,6 +283,24 @@ export const useScenarioStore = defineStore('scenario', () => {
     d.supply = supplySchema.parse(kind === 'boost' ? { kind } : { kind, regulatorSetpointPa: setpoint })
   }
 
+  /**
+   * Puts a target solve's answer in the draft: a seat force as one spring of the springs' total rate (nested springs
+   * are answered as their total), a setpoint, a bleed fraction or a solenoid duty.
+   */
+  function applySolved(unknown: SolveUnknown, value: number): void {
+    const d = draft.value
+    if (!d) return
+    if (unknown === 'seat-force') {
+      const current = live.value?.ok ? live.value.scenario : null
+      const rateNPerM = current ? current.springs.reduce((sum, spring) => sum + spring.rateNPerM, 0) : 0
+      d.springs = [{ from: 'seat', seatForceN: value, rateNPerM }]
+      clearFieldError('springs')
+      return
+    }
+    const path = unknown === 'setpoint' ? 'supply.regulatorSetpointPa' : unknown === 'bleed-fraction' ? 'control.fraction' : 'control.duty'
+    setNumber(path, value)
+  }
+
   /** Whether the session the gas budget plans for vents the supply's lines after each pull. */
   function setVentAfterEachPull(value: boolean): void {
     const supply = draft.value?.supply
@@ -385,6 +404,7 @@ export const useScenarioStore = defineStore('scenario', () => {
     setSupplyKind,
     setDownstreamKind,
     setVentAfterEachPull,
+    applySolved,
     setChoice,
     addSpring,
     removeSpring,

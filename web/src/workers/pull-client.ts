@@ -1,8 +1,13 @@
-import type { PullResult, Scenario } from '@crackpoint/sim-core'
+import type { PullResult, Scenario, SolveRequest, SolveResult } from '@crackpoint/sim-core'
 import type { PullReply, PullRequest } from './pull-protocol'
 
 export interface PullAnswer {
   result: PullResult
+  elapsedMs: number
+}
+
+export interface SolveAnswer {
+  solved: SolveResult
   elapsedMs: number
 }
 
@@ -17,6 +22,8 @@ export class PullCancelled extends Error {
 export interface PullClient {
   /** Runs a pull in the worker; a run still going is stopped first. */
   run(scenario: Scenario): Promise<PullAnswer>
+  /** Runs a target solve (a settled-boost target runs pulls) in the worker; a run still going is stopped first. */
+  solve(scenario: Scenario, request: SolveRequest): Promise<SolveAnswer>
   /** Stops the run that is going, if any. */
   cancel(): void
 }
@@ -28,13 +35,14 @@ export interface PullClient {
 export function createPullClient(): PullClient {
   let worker: Worker | null = null
   let nextId = 1
-  let pending: { id: number; resolve: (answer: PullAnswer) => void; reject: (error: Error) => void } | null = null
+  type Answered = Extract<PullReply, { ok: true }>
+  let pending: { id: number; resolve: (answer: Answered) => void; reject: (error: Error) => void } | null = null
 
   function settle(reply: PullReply): void {
     if (!pending || reply.id !== pending.id) return
     const { resolve, reject } = pending
     pending = null
-    if (reply.ok) resolve({ result: reply.result, elapsedMs: reply.elapsedMs })
+    if (reply.ok) resolve(reply)
     else reject(new Error(reply.message))
   }
 
@@ -61,16 +69,27 @@ export function createPullClient(): PullClient {
     stopped.reject(new PullCancelled())
   }
 
+  function send(scenario: Scenario, solve?: SolveRequest): Promise<Answered> {
+    cancel()
+    worker ??= start()
+    const id = nextId++
+    const request: PullRequest = solve === undefined ? { id, scenario } : { id, scenario, solve }
+    return new Promise<Answered>((resolve, reject) => {
+      pending = { id, resolve, reject }
+      worker!.postMessage(request)
+    })
+  }
+
   return {
-    run(scenario) {
-      cancel()
-      worker ??= start()
-      const id = nextId++
-      const request: PullRequest = { id, scenario }
-      return new Promise<PullAnswer>((resolve, reject) => {
-        pending = { id, resolve, reject }
-        worker!.postMessage(request)
-      })
+    async run(scenario) {
+      const reply = await send(scenario)
+      if (!('result' in reply)) throw new Error('The worker answered a pull with something else.')
+      return { result: reply.result, elapsedMs: reply.elapsedMs }
+    },
+    async solve(scenario, request) {
+      const reply = await send(scenario, request)
+      if (!('solved' in reply)) throw new Error('The worker answered a solve with something else.')
+      return { solved: reply.solved, elapsedMs: reply.elapsedMs }
     },
     cancel,
   }

@@ -1,9 +1,10 @@
-import { parseScenario, runPull } from '@crackpoint/sim-core'
+import { parseScenario, runPull, solveForTarget } from '@crackpoint/sim-core'
 import type { PullReply, PullRequest } from './pull-protocol'
 
 /**
- * Runs one pull off the page's thread: a pull takes from a tenth of a second to several seconds, which on
- * the page would freeze typing. The scenario is checked again here, since a message is only data.
+ * Runs pulls off the page's thread: a pull takes from a tenth of a second to several seconds, and a target solve
+ * on a pull's settled boost several of them, which on the page would freeze typing. The scenario is checked again
+ * here, since a message is only data.
  */
 function answer(request: PullRequest): PullReply {
   const parsed = parseScenario(request.scenario)
@@ -13,6 +14,10 @@ function answer(request: PullRequest): PullReply {
   }
   const started = performance.now()
   try {
+    if (request.solve) {
+      const solved = solveForTarget(parsed.scenario, request.solve)
+      return { id: request.id, ok: true, solved, elapsedMs: performance.now() - started }
+    }
     const result = runPull(parsed.scenario)
     return { id: request.id, ok: true, result, elapsedMs: performance.now() - started }
   } catch (error) {
