@@ -80,6 +80,57 @@ describe('POST /api/scenarios/:id/balance', () => {
   });
 });
 
+describe('POST /api/scenarios/:id/solve', () => {
+  it('gives any role the seat force for a crack boost, which the balance of that spring then meets', async () => {
+    const stored = await scenarioAs('engineer', { name: 'Solved' });
+    const target = 82_737; // 12 psi
+    const response = await request(ctx.app)
+      .post(`/api/scenarios/${stored.id}/solve`)
+      .set(bearer(tokens.analyst))
+      .send({ unknown: 'seat-force', target: 'crack', targetBoostPa: target });
+    expect(response.status, JSON.stringify(response.body)).toBe(200);
+    expect(response.body).toMatchObject({ scenarioId: stored.id, scenarioVersion: 1, solve: { status: 'solved', unknown: 'seat-force', pulls: 0 } });
+    const seatForceN = response.body.solve.value;
+    const rateNPerM = stored.data.springs[0]!.rateNPerM;
+    const data = { ...stored.data, springs: [{ from: 'seat', seatForceN, rateNPerM }] };
+    const check = await request(ctx.app).post('/api/balance').set(bearer(tokens.analyst)).send({ scenario: data });
+    expect(Math.abs(check.body.balance.crack.boostPa - target)).toBeLessThan(1);
+  });
+
+  it('answers a band with each end, and a target out of reach with the nearest value', async () => {
+    const data = { ...defaultScenario(), control: { kind: 'both' }, supply: { kind: 'co2', regulatorSetpointPa: 68_948 } };
+    const stored = await scenarioAs('engineer', { name: 'On CO2', data });
+    const band = await request(ctx.app)
+      .post(`/api/scenarios/${stored.id}/solve`)
+      .set(bearer(tokens.builder))
+      .send({ unknown: 'setpoint', target: 'crack', targetBoostPa: 137_895, ratioBand: [1.4, 1.8] });
+    expect(band.status).toBe(200);
+    expect(band.body.solve.band.map((b: { ratio: number }) => b.ratio)).toEqual([1.4, 1.8]);
+    const low = await request(ctx.app)
+      .post(`/api/scenarios/${stored.id}/solve`)
+      .set(bearer(tokens.builder))
+      .send({ unknown: 'setpoint', target: 'crack', targetBoostPa: 13_790 });
+    expect(low.body.solve).toMatchObject({ status: 'unreachable', reason: 'below-range', nearest: { value: 0 } });
+  });
+
+  it('refuses with 4xx naming the field: a bad body, an unknown the scenario has no place for, a settled target', async () => {
+    const stored = await scenarioAs('engineer', { name: 'Refused' });
+    const post = (body: Record<string, unknown>) => request(ctx.app).post(`/api/scenarios/${stored.id}/solve`).set(bearer(tokens.engineer)).send(body);
+    const bad = await post({ unknown: 'spring', target: 'crack', targetBoostPa: -5 });
+    expect(bad.status).toBe(400);
+    expect(Object.keys(bad.body.error.fields).sort()).toEqual(['targetBoostPa', 'unknown']);
+    const band = await post({ unknown: 'seat-force', target: 'crack', targetBoostPa: 82_737, ratioBand: [1.8, 1.4] });
+    expect(band.status).toBe(400);
+    expect(band.body.error.fields).toEqual({ 'ratioBand.1': 'must be at least the low end of the band' });
+    const duty = await post({ unknown: 'duty', target: 'crack', targetBoostPa: 82_737 });
+    expect(duty.status).toBe(422);
+    expect(duty.body.error.fields.unknown).toMatch(/^control\.kind must be a three- or four-port solenoid/);
+    const settled = await post({ unknown: 'seat-force', target: 'settled', targetBoostPa: 82_737 });
+    expect(settled.status).toBe(422);
+    expect(settled.body.error.fields).toHaveProperty('target');
+  });
+});
+
 describe('POST /api/scenarios/:id/pull', () => {
   it('runs one dynamic pull of the stored scenario and says which version it ran', async () => {
     const stored = await scenarioAs('builder', { name: 'Pulled' });

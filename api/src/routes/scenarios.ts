@@ -10,6 +10,8 @@ import { balanceResponseSchema } from '../schemas/balance.ts';
 import { cloneScenarioBodySchema, emptyBodySchema, pullResponseSchema } from '../schemas/pulls.ts';
 import { balanceOfScenario } from '../services/balance.ts';
 import { runScenarioPull } from '../services/pulls.ts';
+import { solveBodySchema, solveResponseSchema } from '../schemas/solve.ts';
+import { solveScenario } from '../services/solve.ts';
 import { cloneScenario, createScenario, deleteScenario, getScenario, listScenarios, updateScenario } from '../services/scenarios.ts';
 import { defineRoute, ROLES } from './route-def.ts';
 
@@ -113,6 +115,22 @@ export const scenarioRoutes = [
     success: { status: 200, description: 'The balance', schema: balanceResponseSchema },
     errors: [422],
     handler: ({ deps, auth, params }) => balanceOfScenario(deps.knex, auth.workspaceId, params.id),
+  }),
+  defineRoute({
+    id: 'solveScenario',
+    method: 'post',
+    path: '/scenarios/:id/solve',
+    summary: 'The seat force, setpoint, bleed fraction or solenoid duty that gives a target crack or full-open boost, over a ratio band',
+    tag: 'Scenarios',
+    // Every role, as for the balance: instant, stores nothing, counts against no quota.
+    access: ROLES.everyone,
+    scope: 'object',
+    resource: 'Scenario',
+    params: idParamsSchema,
+    body: solveBodySchema,
+    success: { status: 200, description: 'The value, with the boost at each end of the band, or why the target is out of reach', schema: solveResponseSchema },
+    errors: [422],
+    handler: ({ deps, auth, params, body }) => solveScenario(deps.knex, auth.workspaceId, params.id, body),
   }),
   defineRoute({
     id: 'pullScenario',

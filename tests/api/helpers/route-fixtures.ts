@@ -93,6 +93,12 @@ export const routeFixtures: Record<string, RouteFixture> = {
   },
   balanceScenario: { prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}/balance` }) },
   pullScenario: { prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}/pull` }) },
+  solveScenario: {
+    prepare: async ({ world, target }) => ({
+      path: `/scenarios/${await world.scenario(target, 'engineer')}/solve`,
+      body: { unknown: 'seat-force', target: 'crack', targetBoostPa: 82_737 },
+    }),
+  },
 
   computeBalance: { prepare: async () => ({ path: '/balance', body: { scenario: defaultScenario() } }) },
 
