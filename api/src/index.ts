@@ -12,7 +12,7 @@ export {
 } from './seed/seed-demo-workspace.ts';
 export type { SweepQueue } from './services/sweeps.ts';
 export { PullRunner, PullTimeoutError, PullFailedError, type PullRunnerLike, type PullRunnerOptions } from './services/pull/pull-runner.ts';
-export { routeTable, allows, ROLES, type AnyRoute, type Access, type Scope } from './routes/index.ts';
+export { routeTable, allows, ownOnly, OWN_ONLY, ROLES, type AnyRoute, type Access, type Scope } from './routes/index.ts';
 // The records later features build on, for scripts and tests that write them directly.
 export { Invitation, ShareLink, Upload, UsageEntry, Quota, AuditEntry } from './models/index.ts';
 export { deliverSweepNotices, startSweepNotices } from './services/sweep-notices.ts';

@@ -1,15 +1,16 @@
 import { randomUUID } from 'node:crypto';
-import { allows, routeTable, type AnyRoute } from '@crackpoint/api';
+import { allows, ownOnly, routeTable, type AnyRoute } from '@crackpoint/api';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createTestContext, ROLES, type Role, type TestContext } from './helpers/context.ts';
 import { dbFingerprint } from './helpers/db-fingerprint.ts';
-import { routeFixtures, type Call, type Prepared } from './helpers/route-fixtures.ts';
+import { authorOf, routeFixtures, type Call, type Prepared } from './helpers/route-fixtures.ts';
 import { send } from './helpers/send.ts';
 import { createWorld, type Side, type World } from './helpers/world.ts';
 
 /**
  * Every route of the table × every role × a record of the caller's own workspace and one of another
- * workspace. Generated from the route table, so a route added without a fixture fails here.
+ * workspace, and for a route where some roles act only on their own records (`ownOnly`) a record of another member
+ * of the caller's workspace too. Generated from the route table, so a route added without a fixture fails here.
  */
 
 let ctx: TestContext;
@@ -26,7 +27,9 @@ afterAll(async () => {
   await ctx.close();
 });
 
-const SIDES: readonly Side[] = ['own', 'foreign'];
+/** own: the caller's workspace (the caller's own record); foreign: another workspace; member: another member's record. */
+type Cell = Side | 'member';
+const sidesOf = (route: AnyRoute): readonly Cell[] => (route.ownOnly?.length ? ['own', 'member', 'foreign'] : ['own', 'foreign']);
 const routeName = (route: AnyRoute) => `${route.method.toUpperCase()} /api${route.path}`;
 
 function fixtureOf(route: AnyRoute) {
@@ -36,10 +39,13 @@ function fixtureOf(route: AnyRoute) {
 }
 
 /** Who calls and whose records are named: object and reference routes reach across; the rest act at home. */
-function callFor(route: AnyRoute, role: Role, side: Side): Call {
+function callFor(route: AnyRoute, role: Role, cell: Cell): Call {
+  const side: Side = cell === 'member' ? 'own' : cell;
   const reachesAcross = route.scope === 'object' || route.scope === 'reference';
   const caller = reachesAcross ? world.own : world.workspace(side);
-  return { world, role, side, caller, target: world.workspace(side) };
+  // The caller's own record, or (member) one another member made: an engineer's, or an admin's for an engineer.
+  const owner: Role = cell === 'member' ? (role === 'engineer' ? 'admin' : 'engineer') : authorOf(role);
+  return { world, role, side, caller, target: world.workspace(side), owner };
 }
 
 function tokenFor(call: Call): string {
@@ -96,12 +102,14 @@ for (const route of routeTable) {
     }
 
     for (const role of ROLES) {
-      for (const side of SIDES) {
-        const allowed = allows(route, role);
+      for (const side of sidesOf(route)) {
+        // A role that acts only on its own records is refused another member's, as a role without the route is.
+        const allowed = allows(route, role) && !(side === 'member' && ownOnly(route, role));
         const across = (route.scope === 'object' || route.scope === 'reference') && side === 'foreign';
         const expected = !allowed ? 'forbidden' : across ? 'refused like a missing record' : `${route.success.status}`;
+        const where = side === 'member' ? "another member's record" : `${side} workspace`;
 
-        it(`${role}, ${side} workspace: ${expected}`, async () => {
+        it(`${role}, ${where}: ${expected}`, async () => {
           const fixture = fixtureOf(route);
           const call = callFor(route, role, side);
           const prepared = await fixture.prepare(call);

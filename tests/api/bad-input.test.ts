@@ -36,7 +36,7 @@ const writeRoutes = routeTable.filter((route) => route.method !== 'get');
 const routeName = (route: AnyRoute) => `${route.method.toUpperCase()} /api${route.path}`;
 
 function adminCall(): Call {
-  return { world, role: 'admin', side: 'own', caller: world.own, target: world.own };
+  return { world, role: 'admin', side: 'own', caller: world.own, target: world.own, owner: 'admin' };
 }
 
 async function prepare(route: AnyRoute): Promise<Prepared> {

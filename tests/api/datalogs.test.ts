@@ -40,8 +40,9 @@ async function confirmedLog(content: Buffer | string = EXAMPLE_LOG, mapping: obj
   return uploaded.body.datalog.id as string;
 }
 
-async function scenarioOf(data: unknown, name = 'Harrow Lane 2.0 L four'): Promise<string> {
-  const response = await request(ctx.app).post('/api/scenarios').set(bearer('engineer')).send({ name, data });
+/** A scenario a member of `owner`'s role made (builders fit and overlay only on their own: route-def.ts, OWN_ONLY). */
+async function scenarioOf(data: unknown, name = 'Harrow Lane 2.0 L four', owner: Role = 'engineer'): Promise<string> {
+  const response = await request(ctx.app).post('/api/scenarios').set(bearer(owner)).send({ name, data });
   expect(response.status, JSON.stringify(response.body)).toBe(201);
   return response.body.scenario.id as string;
 }
@@ -209,7 +210,7 @@ describe('POST /api/datalogs/:id/overlay', () => {
 
   it('puts the measured series beside a simulated pull of the scenario', async () => {
     const id = await confirmedLog();
-    const scenarioId = await scenarioOf(exampleScenario());
+    const scenarioId = await scenarioOf(exampleScenario(), undefined, 'builder');
     const response = await request(ctx.app).post(`/api/datalogs/${id}/overlay`).set(bearer('builder')).send({ scenarioId });
     expect(response.status, JSON.stringify(response.body)).toBe(200);
     const { overlay } = response.body;
@@ -289,7 +290,7 @@ describe('POST /api/datalogs/:id/fit', () => {
       boost: { column: 'MAP (kPa)', unit: 'kPa-abs' },
       rpm: { column: 'RPM', unit: 'rpm' },
     });
-    const scenarioId = await scenarioOf(exampleScenario());
+    const scenarioId = await scenarioOf(exampleScenario(), undefined, 'builder');
     const response = await request(ctx.app).post(`/api/datalogs/${id}/fit`).set(bearer('builder')).send({ scenarioId, name: 'MAP export fit' });
     expect(response.status, JSON.stringify(response.body).slice(0, 400)).toBe(201);
     expect(Math.abs(response.body.fit.ratio - 1.8) / 1.8).toBeLessThan(0.02);

@@ -97,7 +97,13 @@ describe('POST /api/sweeps/:id/cancel', () => {
     const sweepId = await createDynamicSweep(12);
     await waitForPoints(sweepId, 2);
 
-    const response = await request(ctx.app).post(`/api/sweeps/${sweepId}/cancel`).set(bearer(tokens.builder));
+    // A builder may not stop a sweep another member started; the sweep runs on.
+    const refused = await request(ctx.app).post(`/api/sweeps/${sweepId}/cancel`).set(bearer(tokens.builder));
+    expect(refused.status, JSON.stringify(refused.body)).toBe(403);
+    expect(refused.body.error.message).toBe('A builder cancels only the sweeps they started.');
+    expect(['queued', 'running']).toContain((await sweepRow(sweepId)).state);
+
+    const response = await request(ctx.app).post(`/api/sweeps/${sweepId}/cancel`).set(bearer(tokens.engineer));
     expect(response.status, JSON.stringify(response.body)).toBe(200);
     expect(response.body.sweep.state).toBe('cancelled');
     const cancelled = await sweepRow(sweepId);

@@ -15,7 +15,8 @@ beforeAll(async () => {
   ctx = createTestContext({ SWEEP_DYNAMIC_CHUNK_SIZE: '3' });
   shop = await createWorkspace(ctx.knex, 'sweep-levels');
   tokens = await tokensFor(ctx.app, shop);
-  const created = await request(ctx.app).post('/api/scenarios').set(bearer(tokens.engineer)).send({ name: 'Levels base' });
+  // A builder's scenario: builders sweep only their own (route-def.ts, OWN_ONLY).
+  const created = await request(ctx.app).post('/api/scenarios').set(bearer(tokens.builder)).send({ name: 'Levels base' });
   scenarioId = created.body.scenario.id;
   worker = createSweepWorker({ knex: ctx.knex, redis: ctx.config.redisUrl, queueName: ctx.queueName, concurrency: 2 });
 });

@@ -21,7 +21,8 @@ beforeAll(async () => {
   ctx = createTestContext({ SWEEP_DYNAMIC_CHUNK_SIZE: '2' });
   shop = await createWorkspace(ctx.knex, 'sweep-results');
   tokens = await tokensFor(ctx.app, shop);
-  const created = await request(ctx.app).post('/api/scenarios').set(bearer(tokens.engineer)).send({ name: 'Harrow Lane "street" build, rev 2' });
+  // A builder's scenario: builders sweep only their own (route-def.ts, OWN_ONLY).
+  const created = await request(ctx.app).post('/api/scenarios').set(bearer(tokens.builder)).send({ name: 'Harrow Lane "street" build, rev 2' });
   scenarioId = created.body.scenario.id;
   worker = createSweepWorker({ knex: ctx.knex, redis: ctx.config.redisUrl, queueName: ctx.queueName, concurrency: 2 });
   // Streams are read as a browser reads them, piece by piece, so the app listens on a port of its own.

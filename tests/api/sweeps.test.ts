@@ -33,7 +33,8 @@ beforeAll(async () => {
   rival = await createWorkspace(ctx.knex, 'sweeps-rival');
   tokens = await tokensFor(ctx.app, shop);
   rivalTokens = await tokensFor(ctx.app, rival);
-  const created = await request(ctx.app).post('/api/scenarios').set(bearer(tokens.engineer)).send({ name: 'Sweep base' });
+  // A builder's scenario: builders sweep only their own (route-def.ts, OWN_ONLY); engineers sweep any.
+  const created = await request(ctx.app).post('/api/scenarios').set(bearer(tokens.builder)).send({ name: 'Sweep base' });
   scenarioId = created.body.scenario.id;
   worker = createSweepWorker({ knex: ctx.knex, redis: ctx.config.redisUrl, queueName: ctx.queueName, concurrency: 2 });
 });

@@ -34,7 +34,8 @@ async function newShop(label: string): Promise<Shop> {
   const workspace = await createWorkspace(ctx.knex, label);
   shops.push(workspace);
   const tokens = await tokensFor(ctx.app, workspace);
-  const created = await request(ctx.app).post('/api/scenarios').set('Authorization', `Bearer ${tokens.engineer}`).send({ name: `${label} base` });
+  // A builder's scenario, so both the builder and the engineer may sweep it (builders sweep only their own).
+  const created = await request(ctx.app).post('/api/scenarios').set('Authorization', `Bearer ${tokens.builder}`).send({ name: `${label} base` });
   expect(created.status).toBe(201);
   return { workspace, tokens, scenarioId: created.body.scenario.id };
 }

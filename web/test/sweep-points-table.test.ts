@@ -19,6 +19,7 @@ afterEach(() => {
 const sweep: Sweep = {
   id: 'w1',
   scenarioId: 's1',
+  createdBy: 'u1',
   state: 'done',
   level: 'static',
   axes: [

@@ -42,6 +42,7 @@ function co2Scenario(): Scenario {
 const sweep: Sweep = {
   id: 'w1',
   scenarioId: 's1',
+  createdBy: 'u1',
   state: 'done',
   level: 'static',
   axes: [

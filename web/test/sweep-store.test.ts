@@ -13,6 +13,7 @@ function sweepAt(pointsDone: number, state: Sweep['state']): Sweep {
   return {
     id: 'w1',
     scenarioId: 's1',
+    createdBy: 'u1',
     state,
     level: 'static',
     axes,

@@ -19,7 +19,7 @@ import {
   updateDatalogMapping,
   uploadDatalog,
 } from '../services/datalogs/datalogs.ts';
-import { defineRoute, Reply, ROLES } from './route-def.ts';
+import { defineRoute, Reply, OWN_ONLY, ROLES } from './route-def.ts';
 
 /** The form field that carries the log. */
 export const DATALOG_FILE_FIELD = 'file';
@@ -92,6 +92,7 @@ export const datalogRoutes = [
     tag: 'Datalogs',
     access: ROLES.compute,
     scope: 'object',
+    ownOnly: OWN_ONLY,
     resource: 'Datalog',
     params: idParamsSchema,
     success: { status: 204, description: 'Deleted' },
@@ -107,6 +108,7 @@ export const datalogRoutes = [
     tag: 'Datalogs',
     access: ROLES.compute,
     scope: 'object',
+    ownOnly: OWN_ONLY,
     resource: 'Datalog',
     params: idParamsSchema,
     body: datalogScenarioBodySchema,
@@ -122,6 +124,7 @@ export const datalogRoutes = [
     tag: 'Datalogs',
     access: ROLES.compute,
     scope: 'object',
+    ownOnly: OWN_ONLY,
     resource: 'Datalog',
     params: idParamsSchema,
     body: datalogFitBodySchema,

@@ -13,4 +13,4 @@ export function apiRoutes(deps: ApiDeps): Router {
 }
 
 export { routeTable } from './route-table.ts';
-export { allows, ROLES, type AnyRoute, type Access, type Scope } from './route-def.ts';
+export { allows, ownOnly, OWN_ONLY, ROLES, type AnyRoute, type Access, type Scope } from './route-def.ts';

@@ -45,7 +45,7 @@ export type LimiterName =
 /** Role sets of DESIGN.md's table, named once so every route says which rule it follows. */
 export const ROLES = {
   everyone: USER_ROLES,
-  /** Create, edit and run scenarios, pulls and sweeps (builders only their own scenarios). */
+  /** Create, edit and run scenarios, pulls and sweeps (builders only their own: see OWN_ONLY). */
   compute: ['admin', 'engineer', 'builder'],
   /** Edit the shared hardware library. */
   libraryEditors: ['admin', 'engineer'],
@@ -147,6 +147,12 @@ export interface RouteSpec<
   tag: string;
   access: A;
   scope: Scope;
+  /**
+   * Roles of `access` that act only on a record they own (a scenario they made, a sweep they started, a datalog they
+   * uploaded); on another member's record in the same workspace they get 403. The service enforces it where it reads
+   * the record; the authorization matrix checks both against each other.
+   */
+  ownOnly?: readonly UserRole[];
   /** What the path names, for the 404 of an id that is not one ("Scenario was not found."). */
   resource?: string;
   params?: P;
@@ -178,6 +184,17 @@ export function defineRoute<
   const A extends Access = Access,
 >(spec: RouteSpec<P, Q, B, A>): AnyRoute {
   return spec as unknown as AnyRoute;
+}
+
+/**
+ * Builders act on their own compute and their own records (DESIGN.md): they edit, delete, pull, sweep and cancel only
+ * what they made, and spend units only on their own scenarios. Admins and engineers act on any in the workspace.
+ */
+export const OWN_ONLY: readonly UserRole[] = ['builder'];
+
+/** Whether `role` acts only on its own records on this route. */
+export function ownOnly(route: Pick<AnyRoute, 'ownOnly'>, role: UserRole): boolean {
+  return route.ownOnly?.includes(role) ?? false;
 }
 
 export function allows(route: Pick<AnyRoute, 'access'>, role: UserRole): boolean {

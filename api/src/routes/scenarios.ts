@@ -13,7 +13,7 @@ import { runScenarioPull } from '../services/pulls.ts';
 import { solveBodySchema, solveResponseSchema } from '../schemas/solve.ts';
 import { solveScenario } from '../services/solve.ts';
 import { cloneScenario, createScenario, deleteScenario, getScenario, listScenarios, updateScenario } from '../services/scenarios.ts';
-import { defineRoute, ROLES } from './route-def.ts';
+import { defineRoute, OWN_ONLY, ROLES } from './route-def.ts';
 
 export const scenarioRoutes = [
   defineRoute({
@@ -62,6 +62,7 @@ export const scenarioRoutes = [
     tag: 'Scenarios',
     access: ROLES.compute,
     scope: 'object',
+    ownOnly: OWN_ONLY,
     resource: 'Scenario',
     params: idParamsSchema,
     body: updateScenarioBodySchema,
@@ -77,6 +78,7 @@ export const scenarioRoutes = [
     tag: 'Scenarios',
     access: ROLES.compute,
     scope: 'object',
+    ownOnly: OWN_ONLY,
     resource: 'Scenario',
     params: idParamsSchema,
     success: { status: 204, description: 'Deleted' },
@@ -140,6 +142,7 @@ export const scenarioRoutes = [
     tag: 'Scenarios',
     access: ROLES.compute,
     scope: 'object',
+    ownOnly: OWN_ONLY,
     resource: 'Scenario',
     params: idParamsSchema,
     body: emptyBodySchema,

@@ -11,7 +11,7 @@ import { streamSweepEvents } from '../services/sweep-events.ts';
 import { exportSweepPoints } from '../services/sweep-export.ts';
 import { pullSweepPoint } from '../services/sweep-point-pull.ts';
 import { listSweepPoints } from '../services/sweep-points.ts';
-import { defineRoute, ROLES } from './route-def.ts';
+import { defineRoute, OWN_ONLY, ROLES } from './route-def.ts';
 
 /** What a finished or running sweep gives: its progress live, its points as a table and a file, one point's pull. */
 export const sweepResultRoutes = [
@@ -77,6 +77,7 @@ export const sweepResultRoutes = [
     tag: 'Sweeps',
     access: ROLES.compute,
     scope: 'object',
+    ownOnly: OWN_ONLY,
     resource: 'Sweep',
     params: pointParamsSchema,
     body: emptyBodySchema,

@@ -12,7 +12,7 @@ import { emptyBodySchema } from '../schemas/pulls.ts';
 import { sweepEstimateResponseSchema } from '../schemas/usage.ts';
 import { cancelSweep, createSweep, estimateSweep, getSweep, listSweeps } from '../services/sweeps.ts';
 import { getSweepSurface } from '../services/sweep-surface.ts';
-import { defineRoute, ROLES } from './route-def.ts';
+import { defineRoute, OWN_ONLY, ROLES } from './route-def.ts';
 
 export const sweepRoutes = [
   defineRoute({
@@ -23,6 +23,7 @@ export const sweepRoutes = [
     tag: 'Sweeps',
     access: ROLES.compute,
     scope: 'reference',
+    ownOnly: OWN_ONLY,
     body: createSweepBodySchema,
     success: { status: 201, description: 'Queued; its estimated compute units are reserved from this month\'s quota', schema: sweepResponseSchema },
     errors: [402],
@@ -87,6 +88,7 @@ export const sweepRoutes = [
     tag: 'Sweeps',
     access: ROLES.compute,
     scope: 'object',
+    ownOnly: OWN_ONLY,
     resource: 'Sweep',
     params: idParamsSchema,
     body: emptyBodySchema,

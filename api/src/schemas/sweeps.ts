@@ -82,6 +82,8 @@ const axisSchema = z.object({ path: z.string(), values: z.array(z.number()) });
 export const sweepViewSchema = z.object({
   id: z.uuid(),
   scenarioId: z.uuid(),
+  /** The member who started it (null once they have left); builders cancel only their own. */
+  createdBy: z.uuid().nullable(),
   state: z.enum(['queued', 'running', 'done', 'failed', 'cancelled']),
   level: sweepLevelSchema,
   axes: z.array(axisSchema),

@@ -6,6 +6,7 @@ import type { AuthContext } from './auth.ts';
 import { withServerPullCharge } from './compute-units.ts';
 import { PullFailedError, PullTimeoutError } from './pull/pull-runner.ts';
 import { storedScenarioData } from './scenario-data.ts';
+import { assertOwnRecord } from './ownership.ts';
 import { findScenario } from './scenarios.ts';
 
 /**
@@ -15,10 +16,11 @@ import { findScenario } from './scenarios.ts';
  */
 export async function runScenarioPull(
   deps: Pick<ApiDeps, 'knex' | 'config' | 'pulls'>,
-  auth: Pick<AuthContext, 'workspaceId' | 'userId'>,
+  auth: Pick<AuthContext, 'workspaceId' | 'userId' | 'role'>,
   id: string,
 ): Promise<PullResponse> {
   const scenario = await findScenario(deps.knex, auth.workspaceId, id);
+  assertOwnRecord(auth, scenario.ownerId, 'A builder runs pulls only on their own scenarios.');
   const data = storedScenarioData(scenario.data);
   const { config } = deps;
 

@@ -5,6 +5,7 @@ import type { SweepPointPullResponse } from '../schemas/sweep-results.ts';
 import type { AuthContext } from './auth.ts';
 import { withServerPullCharge } from './compute-units.ts';
 import { PullFailedError, PullTimeoutError } from './pull/pull-runner.ts';
+import { assertOwnRecord } from './ownership.ts';
 import { storedScenarioData } from './scenario-data.ts';
 import { findWorkspaceSweep } from './sweep-results-common.ts';
 
@@ -51,11 +52,12 @@ function pullError(error: unknown): unknown {
  */
 export async function pullSweepPoint(
   deps: Pick<ApiDeps, 'knex' | 'config' | 'pulls'>,
-  auth: Pick<AuthContext, 'workspaceId' | 'userId'>,
+  auth: Pick<AuthContext, 'workspaceId' | 'userId' | 'role'>,
   id: string,
   indexText: string,
 ): Promise<SweepPointPullResponse> {
   const sweep = await findWorkspaceSweep(deps.knex, auth.workspaceId, id);
+  assertOwnRecord(auth, sweep.createdBy, 'A builder runs the points of only the sweeps they started.');
   const index = parseIndex(indexText, countPoints(sweep.axes));
   const point = pointAt(storedScenarioData(sweep.scenarioSnapshot), sweep.axes, index);
   const { scenario, maxSteps } = bounded(deps.config, point.scenario);

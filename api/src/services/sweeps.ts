@@ -4,6 +4,7 @@ import type { Queue } from 'bullmq';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
 import type { Config } from '../config.ts';
+import { assertOwnRecord } from './ownership.ts';
 import { AppError, type FieldErrors } from '../errors/index.ts';
 import { Sweep, type ResolvedAxis } from '../models/index.ts';
 import type { CreateSweepBody, ListSweepsQuery, SweepDetail, SweepView } from '../schemas/sweeps.ts';
@@ -30,6 +31,7 @@ export function presentSweep(sweep: Sweep): SweepView {
   return {
     id: sweep.id,
     scenarioId: sweep.scenarioId,
+    createdBy: sweep.createdBy,
     state: sweep.state,
     level: sweep.level,
     axes: sweep.axes.map((axis) => ({ path: axis.path, values: axis.values })),
@@ -90,6 +92,7 @@ export async function estimateSweep(deps: SweepDeps, auth: AuthContext, input: C
 
 export async function createSweep(deps: SweepDeps, auth: AuthContext, input: CreateSweepBody): Promise<SweepView> {
   const { scenario, axes, pointCount, chunkSize, chunkCount, computeUnits } = await planSweep(deps, auth, input);
+  assertOwnRecord(auth, scenario.ownerId, 'A builder sweeps only their own scenarios.');
   const usageMonth = usageMonthOf(new Date());
 
   // The sweep, every chunk row and the sweep's reservation exist together or not at all; the workers
@@ -156,6 +159,7 @@ export async function cancelSweep(deps: SweepDeps, auth: AuthContext, id: string
   const sweep = await deps.knex.transaction(async (trx) => {
     const row = await Sweep.query(trx).modify('inWorkspace', auth.workspaceId).findById(id).forUpdate();
     if (!row) throw AppError.notFound('Sweep');
+    assertOwnRecord(auth, row.createdBy, 'A builder cancels only the sweeps they started.');
     if (row.state !== 'queued' && row.state !== 'running') {
       throw new AppError(409, 'sweep_finished', `The sweep is already ${row.state}; only a queued or running sweep can be cancelled.`);
     }

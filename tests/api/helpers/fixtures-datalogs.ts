@@ -53,10 +53,10 @@ export async function datalogIn(world: World, workspace: TestWorkspace, role: Ro
 }
 
 /** The example log's own scenario, written straight to the database. */
-export async function exampleScenarioIn(world: World, workspace: TestWorkspace): Promise<string> {
+export async function exampleScenarioIn(world: World, workspace: TestWorkspace, owner: Role = 'engineer'): Promise<string> {
   const [row] = await world.ctx
     .knex('scenarios')
-    .insert({ workspace_id: workspace.id, owner_id: workspace.members.engineer.id, name: 'Harrow Lane 2.0 L four', data: JSON.stringify(exampleScenario()) })
+    .insert({ workspace_id: workspace.id, owner_id: workspace.members[owner].id, name: 'Harrow Lane 2.0 L four', data: JSON.stringify(exampleScenario()) })
     .returning<{ id: string }[]>('id');
   if (!row) throw new Error('scenario not written');
   return world.track(workspace, row.id);
@@ -72,17 +72,17 @@ export const datalogsFixtures: Record<string, RouteFixture> = {
       body: EXAMPLE_MAPPING,
     }),
   },
-  deleteDatalog: { prepare: async ({ world, target, role }) => ({ path: `/datalogs/${await datalogIn(world, target, authorOf(role))}` }) },
+  deleteDatalog: { prepare: async ({ world, target, owner }) => ({ path: `/datalogs/${await datalogIn(world, target, owner)}` }) },
   overlayDatalog: {
-    prepare: async ({ world, target }) => ({
+    prepare: async ({ world, target, owner }) => ({
       path: `/datalogs/${await datalogIn(world, target, 'engineer')}/overlay`,
-      body: { scenarioId: await exampleScenarioIn(world, target) },
+      body: { scenarioId: await exampleScenarioIn(world, target, owner) },
     }),
   },
   fitDatalog: {
-    prepare: async ({ world, target }) => ({
+    prepare: async ({ world, target, owner }) => ({
       path: `/datalogs/${await datalogIn(world, target, 'engineer')}/fit`,
-      body: { scenarioId: await exampleScenarioIn(world, target), name: 'Harrow Lane 2.0 L four, fitted' },
+      body: { scenarioId: await exampleScenarioIn(world, target, owner), name: 'Harrow Lane 2.0 L four, fitted' },
     }),
   },
 };

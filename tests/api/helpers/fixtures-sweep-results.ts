@@ -25,8 +25,8 @@ export const sweepResultsFixtures: Record<string, RouteFixture> = {
     }),
   },
   pullSweepPoint: {
-    prepare: async ({ world, target }) => ({
-      path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'))}/points/3/pull`,
+    prepare: async ({ world, target, owner }) => ({
+      path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'), owner)}/points/3/pull`,
       body: {},
     }),
   },

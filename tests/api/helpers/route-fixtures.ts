@@ -18,6 +18,11 @@ export interface Call {
   caller: TestWorkspace;
   /** Whose records the request names. */
   target: TestWorkspace;
+  /**
+   * Which member of `target` owns (made, started, uploaded) the record the request names, where the route lets some
+   * roles act only on their own (`ownOnly`): the caller's own role, or another member's.
+   */
+  owner: Role;
 }
 
 export interface Prepared {
@@ -42,8 +47,8 @@ export interface RouteFixture {
   foreignStatus?: number;
 }
 
-/** A record a member of this role can change: their own where the role only changes its own. */
-const authorOf = (role: Role): Role => ((ROLE_SETS.compute as readonly Role[]).includes(role) ? role : 'engineer');
+/** A record a member of this role can own: their own where the role makes records, else an engineer's. */
+export const authorOf = (role: Role): Role => ((ROLE_SETS.compute as readonly Role[]).includes(role) ? role : 'engineer');
 
 export const routeFixtures: Record<string, RouteFixture> = {
   getHealth: { prepare: async () => ({ path: '/health' }) },
@@ -78,21 +83,21 @@ export const routeFixtures: Record<string, RouteFixture> = {
     }),
   },
   updateScenario: {
-    prepare: async ({ world, target, role }) => ({
-      path: `/scenarios/${await world.scenario(target, authorOf(role))}`,
+    prepare: async ({ world, target, owner }) => ({
+      path: `/scenarios/${await world.scenario(target, owner)}`,
       body: { name: 'Matrix rename', data: defaultScenario(), version: 1 },
     }),
   },
 
   deleteScenario: {
-    prepare: async ({ world, target, role }) => ({ path: `/scenarios/${await world.scenario(target, authorOf(role))}` }),
+    prepare: async ({ world, target, owner }) => ({ path: `/scenarios/${await world.scenario(target, owner)}` }),
   },
 
   cloneScenario: {
     prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}/clone`, body: {} }),
   },
   balanceScenario: { prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}/balance` }) },
-  pullScenario: { prepare: async ({ world, target }) => ({ path: `/scenarios/${await world.scenario(target, 'engineer')}/pull` }) },
+  pullScenario: { prepare: async ({ world, target, owner }) => ({ path: `/scenarios/${await world.scenario(target, owner)}/pull` }) },
   solveScenario: {
     prepare: async ({ world, target }) => ({
       path: `/scenarios/${await world.scenario(target, 'engineer')}/solve`,
@@ -104,9 +109,9 @@ export const routeFixtures: Record<string, RouteFixture> = {
 
   createSweep: {
     foreignStatus: 404,
-    prepare: async ({ world, target }) => ({
+    prepare: async ({ world, target, owner }) => ({
       path: '/sweeps',
-      body: { scenarioId: await world.scenario(target, 'engineer'), axes: [{ path: 'exhaust.ratio', values: [1.2, 1.6] }] },
+      body: { scenarioId: await world.scenario(target, owner), axes: [{ path: 'exhaust.ratio', values: [1.2, 1.6] }] },
     }),
   },
   listSweeps: { prepare: async () => ({ path: '/sweeps', query: { limit: 200 } }) },
@@ -114,8 +119,8 @@ export const routeFixtures: Record<string, RouteFixture> = {
     prepare: async ({ world, target }) => ({ path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'))}` }),
   },
   cancelSweep: {
-    prepare: async ({ world, target }) => ({
-      path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'))}/cancel`,
+    prepare: async ({ world, target, owner }) => ({
+      path: `/sweeps/${await world.sweep(target, await world.scenario(target, 'engineer'), owner)}/cancel`,
       body: {},
     }),
   },

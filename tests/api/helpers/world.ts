@@ -44,7 +44,8 @@ export interface World {
   track(workspace: TestWorkspace, id: string): string;
   idsOf(workspace: TestWorkspace): ReadonlySet<string>;
   scenario(workspace: TestWorkspace, owner: Role, name?: string): Promise<string>;
-  sweep(workspace: TestWorkspace, scenarioId: string): Promise<string>;
+  /** A sweep of a scenario, started by a member of `creator`'s role (an engineer unless said). */
+  sweep(workspace: TestWorkspace, scenarioId: string, creator?: Role): Promise<string>;
   /** A part of the workspace's library (table = its kind: wastegates, springs, …). */
   part(workspace: TestWorkspace, table: LibraryTable, name?: string): Promise<string>;
   /** A new member with a session of their own, for routes that spend or change the session. */
@@ -85,7 +86,7 @@ export async function createWorld(ctx: TestContext, label: string): Promise<Worl
       if (!row) throw new Error('scenario not written');
       return world.track(workspace, row.id);
     },
-    async sweep(workspace, scenarioId) {
+    async sweep(workspace, scenarioId, creator = 'engineer') {
       const axes = [
         { path: 'springs.0.seatForceN', values: [100, 150] },
         { path: 'exhaust.ratio', values: [1.2, 1.6] },
@@ -94,7 +95,7 @@ export async function createWorld(ctx: TestContext, label: string): Promise<Worl
         .insert({
           workspace_id: workspace.id,
           scenario_id: scenarioId,
-          created_by: workspace.members.engineer.id,
+          created_by: workspace.members[creator].id,
           scenario_snapshot: JSON.stringify(defaultScenario()),
           level: 'static',
           axes: JSON.stringify(axes),

@@ -12,6 +12,10 @@ export const scenariosApi = {
   create(name: string, data?: Scenario): Promise<{ scenario: ScenarioRow }> {
     return request('/api/scenarios', { method: 'POST', body: data === undefined ? { name } : { name, data } })
   },
+  /** A copy the caller owns, at version 1 (`POST /api/scenarios/:id/clone`). */
+  clone(id: string): Promise<{ scenario: ScenarioRow }> {
+    return request(`/api/scenarios/${encodeURIComponent(id)}/clone`, { method: 'POST', body: {} })
+  },
   update(id: string, patch: { name?: string; data?: Scenario; version: number }): Promise<{ scenario: ScenarioRow }> {
     return request(`/api/scenarios/${encodeURIComponent(id)}`, { method: 'PATCH', body: patch })
   },

@@ -43,6 +43,8 @@ export interface ResolvedAxis {
 export interface Sweep {
   id: string
   scenarioId: string
+  /** The member who started it (null once they have left); builders cancel only their own. */
+  createdBy: string | null
   state: SweepState
   level: 'static' | 'dynamic' | 'both'
   axes: ResolvedAxis[]

@@ -31,6 +31,14 @@ export const useSessionStore = defineStore('session', () => {
   const canCompute = computed(() => user.value !== null && COMPUTE_ROLES.includes(user.value.role))
   const canEditLibrary = computed(() => user.value !== null && LIBRARY_EDIT_ROLES.includes(user.value.role))
   const canShare = computed(() => user.value !== null && SHARE_ROLES.includes(user.value.role))
+  /**
+   * Whether the user may edit, run or stop a record another member (or they) made: compute roles may, builders only
+   * on their own (the API's OWN_ONLY rule).
+   */
+  function mayActOn(ownerId: string | null | undefined): boolean {
+    if (!canCompute.value || user.value === null) return false
+    return user.value.role !== 'builder' || ownerId === user.value.id
+  }
 
   async function signIn(email: string, password: string): Promise<void> {
     const result = await authApi.signIn(email, password)
@@ -78,5 +86,5 @@ export const useSessionStore = defineStore('session', () => {
     localStorage.setItem(UNIT_KEY, system)
   }
 
-  return { token, user, isSignedIn, unitSystem, canCompute, canEditLibrary, canShare, signIn, register, adopt, ensureUser, signOut, setUnitSystem }
+  return { token, user, isSignedIn, unitSystem, canCompute, canEditLibrary, canShare, mayActOn, signIn, register, adopt, ensureUser, signOut, setUnitSystem }
 })

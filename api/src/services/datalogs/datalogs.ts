@@ -2,6 +2,7 @@ import { createHash } from 'node:crypto';
 import { interpolateSeries, withFitParameters, type PullFitReport } from '@crackpoint/sim-core';
 import type { Knex } from 'knex';
 import type { Config } from '../../config.ts';
+import { assertOwnRecord } from '../ownership.ts';
 import { AppError, type FieldErrors } from '../../errors/index.ts';
 import { DatalogSeries, Scenario, Upload } from '../../models/index.ts';
 import type { ApiDeps, UploadedFile } from '../../routes/route-def.ts';
@@ -292,7 +293,7 @@ function insidePull(series: SeriesData, durationS: number): { timeS: number[]; b
 /** The log beside one simulated pull of the scenario (a server pull, charged as one), with their boost difference. */
 export async function overlayDatalog(
   deps: Pick<ApiDeps, 'knex' | 'config' | 'pulls'>,
-  auth: Pick<AuthContext, 'workspaceId' | 'userId'>,
+  auth: Pick<AuthContext, 'workspaceId' | 'userId' | 'role'>,
   id: string,
   scenarioId: string,
 ) {
@@ -367,13 +368,14 @@ function fittedName(scenarioName: string, filename: string): string {
  */
 export async function fitDatalog(
   deps: Pick<ApiDeps, 'knex' | 'config'> & { fits: FitRunnerLike },
-  auth: Pick<AuthContext, 'workspaceId' | 'userId'>,
+  auth: Pick<AuthContext, 'workspaceId' | 'userId' | 'role'>,
   id: string,
   body: DatalogFitBody,
 ): Promise<{ fit: PullFitReport; scenario: ScenarioRow | null }> {
   const { knex, config } = deps;
   const { upload, series } = await confirmedSeries(knex, auth.workspaceId, id);
   const original = await findScenario(knex, auth.workspaceId, body.scenarioId);
+  assertOwnRecord(auth, original.ownerId, 'A builder fits logs only to their own scenarios.');
   const data = storedScenarioData(original.data);
   const maxSteps = Math.min(data.solver.maxSteps, config.pullMaxSteps);
   const bounded = maxSteps === data.solver.maxSteps ? data : { ...data, solver: { ...data.solver, maxSteps } };
