@@ -96,6 +96,13 @@ describe('engineer sweep', () => {
 
     const heat = page.getByTestId('heat-map-plot')
     await heat.locator('.main-svg').first().waitFor({ timeout: 30_000 })
+    // Nothing of the workspace leaves the product through a chart: Plotly's "Share chart" (to its makers' cloud) is off.
+    await heat.hover()
+    const toolbar = heat.locator('.modebar-btn')
+    await toolbar.first().waitFor({ state: 'attached' })
+    const titles = await toolbar.evaluateAll((buttons) => buttons.map((b) => b.getAttribute('data-title') ?? ''))
+    expect(titles.length).toBeGreaterThan(0)
+    expect(titles.filter((t) => /share chart|cloud|chart studio/i.test(t))).toEqual([])
     const slice = page.getByTestId('sweep-slice')
     await expect.poll(() => slice.textContent()).toContain('Cut at Regulator setpoint: 8.0 psi')
     const surfaceAsked = page.waitForResponse((r) => r.url().includes('/surface') && r.url().includes('at='))
