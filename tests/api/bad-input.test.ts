@@ -150,7 +150,35 @@ for (const route of writeRoutes) {
       });
     }
 
+    if (route.method === 'get' && route.query) {
+      it('answers a null character in the query with 400 naming the parameter, never a 500', async () => {
+        const fresh = await prepare(route);
+        const response = await request(ctx.app)
+          .get(`${url(fresh)}?q=%00&units=%00`)
+          .set('Authorization', `Bearer ${tokenOf(fresh)}`);
+        expect(response.status, JSON.stringify(response.body)).toBe(400);
+        expect(response.body.error.fields).toMatchObject({ q: 'must not contain a null character' });
+      });
+    }
+
     if (!route.body) return;
+
+    if ((route.requestBody?.kind ?? 'json') === 'json') it('answers a null character in any text and keys like __proto__ with 400 naming each, and writes nothing', async () => {
+      const fresh = await prepare(route);
+      const sent = (fresh.body ?? {}) as Record<string, unknown>;
+      const before = await dbFingerprint(ctx.knex);
+      const nul = await raw(route, fresh).send({ ...sent, note: 'pressure\u0000spike' });
+      expect(nul.status, JSON.stringify(nul.body)).toBe(400);
+      expect(nul.body.error.fields).toMatchObject({ note: 'must not contain a null character' });
+      // Sent as JSON text: JSON.parse makes "__proto__" an own key, which must be named, not swallowed.
+      const proto = await raw(route, fresh)
+        .set('Content-Type', 'application/json')
+        .send(`{"__proto__": {"admin": true}, "constructor": 1, ${JSON.stringify(sent).slice(1)}`.replace(', }', '}'));
+      expect(proto.status, JSON.stringify(proto.body)).toBe(400);
+      expect(proto.body.error.fields).toMatchObject({ ['__proto__']: 'is not a field name', constructor: 'is not a field name' });
+      expect(Object.keys(proto.body.error.fields)).toContain('__proto__');
+      expect(await dbFingerprint(ctx.knex)).toEqual(before);
+    });
 
     it('answers a body that is not an object with 400 naming the body', async () => {
       const fresh = await prepare(route);

@@ -16,7 +16,8 @@ export interface ErrorBody {
 
 /** The dotted path a client uses to find the field; the whole body when the issue has no path. */
 export function zodFields(error: ZodError, prefix = ''): FieldErrors {
-  const fields: FieldErrors = {};
+  // No prototype: a field named "__proto__" or "constructor" is named like any other, not swallowed by Object's own.
+  const fields: FieldErrors = Object.create(null) as FieldErrors;
   for (const issue of error.issues) {
     const base = [prefix, ...issue.path.map(String)].filter((part) => part !== '');
     // A field the request does not know is named itself, not the object around it.
