@@ -1,6 +1,7 @@
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import express, { type Express } from 'express';
+import helmet from 'helmet';
 import type { Knex } from 'knex';
 import type { Logger } from 'pino';
 import { pinoHttp } from 'pino-http';
@@ -31,6 +32,38 @@ export function createApp(deps: AppDeps): Express {
 
   const app = express();
   app.disable('x-powered-by');
+
+  // Security headers on every answer (helmet): the app may not be framed by another origin, content types are not
+  // sniffed, no referrer leaves it, and the page runs under a Content-Security-Policy that lets in only what the
+  // built app itself needs. Everything is served from this origin (fonts too, DESIGN.md: no CDN). Vuetify and Plotly
+  // set style attributes and inject style sheets, so styles allow inline; Plotly renders hover labels and exported
+  // images from data: and blob: URLs; the pull worker is a module script of this origin.
+  app.use(
+    helmet({
+      contentSecurityPolicy: {
+        useDefaults: false,
+        directives: {
+          defaultSrc: ["'self'"],
+          baseUri: ["'self'"],
+          scriptSrc: ["'self'"],
+          styleSrc: ["'self'", "'unsafe-inline'"],
+          imgSrc: ["'self'", 'data:', 'blob:'],
+          fontSrc: ["'self'", 'data:'],
+          connectSrc: ["'self'"],
+          workerSrc: ["'self'", 'blob:'],
+          objectSrc: ["'none'"],
+          frameAncestors: ["'none'"],
+          formAction: ["'self'"],
+        },
+      },
+      // The app loads nothing cross-origin, but an embedder policy would break a shop's own reverse proxies for little.
+      crossOriginEmbedderPolicy: false,
+      referrerPolicy: { policy: 'no-referrer' },
+      frameguard: { action: 'deny' },
+      // Served over plain HTTP on loopback by `npm start`; HSTS belongs to the TLS front a deployment puts before it.
+      strictTransportSecurity: false,
+    }),
+  );
 
   app.use(
     pinoHttp({

@@ -73,9 +73,16 @@ export async function startHarness(options: { viewport?: { width: number; height
     ],
   })
   const pageErrors: string[] = []
-  context.on('page', (opened) => opened.on('pageerror', (error) => pageErrors.push(error.message)))
+  // Script errors, and anything the Content-Security-Policy refused (the browser reports it on the console).
+  const watch = (p: Page) => {
+    p.on('pageerror', (error) => pageErrors.push(error.message))
+    p.on('console', (message) => {
+      if (message.type() === 'error' && /Content Security Policy/i.test(message.text())) pageErrors.push(message.text())
+    })
+  }
+  context.on('page', watch)
   const page = context.pages()[0] ?? (await context.newPage())
-  page.on('pageerror', (error) => pageErrors.push(error.message))
+  watch(page)
 
   return {
     knex,
