@@ -544,6 +544,37 @@ describe('GET /api/sweeps/:id/points.csv', () => {
     expect(metricRows[1]![1]).toBe('60');
   });
 
+  it('keeps only the points whose metric lies in a range, in the table and the CSV, and names a half range', async () => {
+    const sweepId = await writeSweep({ axes: [{ path: 'exhaust.ratio', values: [1, 1.2, 1.4, 1.6, 1.8, 2, 2.2, 2.4] }], level: 'both' });
+    const stored = await ctx.knex('sweep_points').where({ sweep_id: sweepId }).orderBy('point_index');
+    const values = stored.map((r) => r.settled_boost_pa as number | null).filter((v): v is number => v !== null).sort((a, b) => a - b);
+    const [from, to] = [values[1]!, values[values.length - 2]!];
+    const expected = stored
+      .filter((r) => r.settled_boost_pa !== null && r.settled_boost_pa >= from && r.settled_boost_pa <= to)
+      .map((r) => Number(r.point_index));
+    expect(expected.length).toBeGreaterThan(0);
+    expect(expected.length).toBeLessThan(stored.length);
+
+    const list = await request(ctx.app).get(`/api/sweeps/${sweepId}/points`).query({ between: 'settledBoostPa', from, to, limit: 500 }).set(bearer(tokens.analyst));
+    expect(list.status, JSON.stringify(list.body)).toBe(200);
+    expect(list.body.total).toBe(expected.length);
+    expect(list.body.items.map((p: { index: number }) => p.index)).toEqual(expected);
+
+    const csv = await request(ctx.app).get(`/api/sweeps/${sweepId}/points.csv`).query({ between: 'settledBoostPa', from, to }).set(bearer(tokens.analyst)).buffer(true);
+    expect((parseCsv(csv.text) as string[][]).slice(1).map((r) => Number(r[0]))).toEqual(expected);
+
+    const half = await request(ctx.app).get(`/api/sweeps/${sweepId}/points`).query({ between: 'settledBoostPa', from }).set(bearer(tokens.analyst));
+    expect(half.status).toBe(400);
+    expect(half.body.error.fields).toEqual({ to: 'is required with between: the highest value kept' });
+    const flag = await request(ctx.app).get(`/api/sweeps/${sweepId}/points`).query({ between: 'notSettled', from: 0, to: 1 }).set(bearer(tokens.analyst));
+    expect(flag.status).toBe(400);
+    expect(Object.keys(flag.body.error.fields)).toEqual(['between']);
+    const staticOnly = await writeSweep({ axes: [{ path: 'exhaust.ratio', values: [1.2, 1.6] }], level: 'static' });
+    const wrongLevel = await request(ctx.app).get(`/api/sweeps/${staticOnly}/points`).query({ between: 'settledBoostPa', from, to }).set(bearer(tokens.analyst));
+    expect(wrongLevel.status).toBe(400);
+    expect(wrongLevel.body.error.fields.between).toMatch(/result of the dynamic level/);
+  });
+
   it('filters by status and refuses an unknown unit system naming units', async () => {
     const sweepId = await writeSweep({ axes: [{ path: 'exhaust.ratio', values: [1, 1.2, 1.4, 1.6, 1.8, 2, 2.2, 2.4] }], level: 'static' });
     const failed = await request(ctx.app).get(`/api/sweeps/${sweepId}/points.csv`).query({ status: 'failed' }).set(bearer(tokens.analyst)).buffer(true);

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { POINT_STATUSES, type PointStatus } from '../models/sweep-point.ts';
 import { uuidSchema } from './common.ts';
 import { pullResultSchema } from './pulls.ts';
-import { METRIC_COLUMNS, SURFACE_METRICS, type SurfaceMetric } from './sweeps.ts';
+import { FLAG_METRICS, METRIC_COLUMNS, SURFACE_METRICS, type SurfaceMetric } from './sweeps.ts';
 
 const sweepStateSchema = z.enum(['queued', 'running', 'done', 'failed', 'cancelled']);
 
@@ -47,13 +47,36 @@ const pointStatusesSchema = z.string({ error: 'must be text' }).transform((text,
   return parts as PointStatus[];
 });
 
+/** Metrics a range filter can take: the stored numbers, not the yes/no flags. */
+export const RANGE_METRICS = SURFACE_METRICS.filter((m) => !FLAG_METRICS.has(m)) as [SurfaceMetric, ...SurfaceMetric[]];
+const bound = z.coerce.number({ error: 'must be a number' }).refine(Number.isFinite, 'must be a number');
+
+/**
+ * "Points whose `between` metric lies from `from` to `to`" (SI, inclusive): a sweep that answers a target, e.g. settled
+ * boost between 19.5 and 20.5 psi. The three come together.
+ */
+const rangeShape = {
+  between: z.enum(RANGE_METRICS, { error: `must be one of ${RANGE_METRICS.join(', ')}` }).optional(),
+  from: bound.optional(),
+  to: bound.optional(),
+};
+function checkRange(q: { between?: unknown; from?: number | undefined; to?: number | undefined }, ctx: z.RefinementCtx): void {
+  const given = [q.between, q.from, q.to].filter((v) => v !== undefined).length;
+  if (given === 0) return;
+  if (q.between === undefined) ctx.addIssue({ code: 'custom', path: ['between'], message: 'is required with from and to: the metric they bound' });
+  if (q.from === undefined) ctx.addIssue({ code: 'custom', path: ['from'], message: 'is required with between: the lowest value kept' });
+  if (q.to === undefined) ctx.addIssue({ code: 'custom', path: ['to'], message: 'is required with between: the highest value kept' });
+  if (q.from !== undefined && q.to !== undefined && q.to < q.from) ctx.addIssue({ code: 'custom', path: ['to'], message: 'must be at least from' });
+}
+
 export const listPointsQuerySchema = z.object({
   offset: z.coerce.number({ error: 'must be a whole number' }).int('must be a whole number').min(0).default(0),
   limit: z.coerce.number({ error: 'must be a whole number' }).int('must be a whole number').min(1).max(500).default(100),
   sort: z.enum(POINT_SORTS, { error: `must be one of ${POINT_SORTS.join(', ')}` }).default('index'),
   order: z.enum(['asc', 'desc'], { error: 'must be asc or desc' }).default('asc'),
   status: pointStatusesSchema.optional(),
-});
+  ...rangeShape,
+}).superRefine(checkRange);
 export type ListPointsQuery = z.output<typeof listPointsQuerySchema>;
 
 const metricValueSchema = z.union([z.number(), z.boolean(), z.null()]);
@@ -87,8 +110,9 @@ export type ExportUnitSystem = (typeof EXPORT_UNIT_SYSTEMS)[number];
 
 export const exportPointsQuerySchema = z.object({
   units: z.enum(EXPORT_UNIT_SYSTEMS, { error: 'must be si, us or metric' }).default('si'),
-  status: listPointsQuerySchema.shape.status,
-});
+  status: pointStatusesSchema.optional(),
+  ...rangeShape,
+}).superRefine(checkRange);
 export type ExportPointsQuery = z.output<typeof exportPointsQuerySchema>;
 
 /** The index is read by the service, so a bad one is an answer naming `index`, not a bare 404. */

@@ -5,7 +5,7 @@ import { StreamReply } from '../routes/route-def.ts';
 import type { ExportPointsQuery, ExportUnitSystem } from '../schemas/sweep-results.ts';
 import { FLAG_METRICS, METRIC_COLUMNS, type SurfaceMetric } from '../schemas/sweeps.ts';
 import { findWorkspaceSweep, metricsOfLevel } from './sweep-results-common.ts';
-import { pointColumns, withStatus, type StoredPointRow } from './sweep-points.ts';
+import { checkFilter, pointColumns, withFilter, type StoredPointRow } from './sweep-points.ts';
 
 /** Rows read per query: each page is its own short query, so no connection is held while the client reads. */
 const PAGE_ROWS = 2000;
@@ -150,6 +150,7 @@ export function exportFileName(scenarioName: string, sweep: Pick<Sweep, 'id' | '
  */
 export async function exportSweepPoints(knex: Knex, workspaceId: string, id: string, query: ExportPointsQuery): Promise<StreamReply> {
   const sweep = await findWorkspaceSweep(knex, workspaceId, id);
+  checkFilter(sweep, query);
   const scenario = await knex('scenarios').where({ id: sweep.scenarioId }).first<{ name: string } | undefined>('name');
   const columns = columnsFor(sweep.axes, sweep.level, query.units);
   const selected = pointColumns(sweep.level);
@@ -158,7 +159,7 @@ export async function exportSweepPoints(knex: Knex, workspaceId: string, id: str
     yield csvLine(columns.map((column) => column.heading));
     let after = -1;
     for (;;) {
-      const page = await withStatus(knex('sweep_points').where('sweep_id', sweep.id).where('point_index', '>', after), query.status)
+      const page = await withFilter(knex('sweep_points').where('sweep_id', sweep.id).where('point_index', '>', after), query)
         .orderBy('point_index')
         .limit(PAGE_ROWS)
         .select<StoredPointRow[]>(selected);

@@ -55,9 +55,28 @@ function checkSort(sweep: Sweep, sort: ListPointsQuery['sort']): void {
   if (fields) throw AppError.validation(fields, 'The points query is not valid.');
 }
 
-/** Restricts a points query to the statuses asked for. */
-export function withStatus<Q extends Knex.QueryBuilder>(query: Q, statuses: readonly PointStatus[] | undefined): Q {
+/** What a points query keeps: the statuses asked for, and a metric's range (points without that value are left out). */
+export interface PointFilter {
+  status?: readonly PointStatus[] | undefined;
+  between?: SurfaceMetric | undefined;
+  from?: number | undefined;
+  to?: number | undefined;
+}
+
+/** Refuses a range on a metric the sweep's level does not store, naming `between`. */
+export function checkFilter(sweep: Sweep, filter: PointFilter): void {
+  if (filter.between === undefined) return;
+  const fields = metricFieldsFor(sweep.level, filter.between, 'between');
+  if (fields) throw AppError.validation(fields, 'The points query is not valid.');
+}
+
+/** Restricts a points query to the statuses asked for and the metric range. */
+export function withFilter<Q extends Knex.QueryBuilder>(query: Q, filter: PointFilter): Q {
+  const statuses = filter.status;
   if (statuses && statuses.length > 0) query.whereIn('status', [...statuses]);
+  if (filter.between !== undefined && filter.from !== undefined && filter.to !== undefined) {
+    query.whereBetween(METRIC_COLUMNS[filter.between], [filter.from, filter.to]);
+  }
   return query;
 }
 
@@ -70,17 +89,18 @@ export function withStatus<Q extends Knex.QueryBuilder>(query: Q, statuses: read
 export async function listSweepPoints(knex: Knex, workspaceId: string, id: string, query: ListPointsQuery): Promise<SweepPointList> {
   const sweep = await findWorkspaceSweep(knex, workspaceId, id);
   checkSort(sweep, query.sort);
+  checkFilter(sweep, query);
   const column = sortColumnOf(query.sort);
   const direction = query.order === 'desc' ? 'desc' : 'asc';
 
-  const ordered = withStatus(knex('sweep_points').where('sweep_id', sweep.id), query.status).select<{ point_index: number }[]>('point_index');
+  const ordered = withFilter(knex('sweep_points').where('sweep_id', sweep.id), query).select<{ point_index: number }[]>('point_index');
   if (column === 'point_index') ordered.orderBy('point_index', direction);
   else ordered.orderByRaw(`?? ${direction} nulls last, point_index asc`, [column]);
   ordered.limit(query.limit).offset(query.offset);
 
   const [page, counted] = await Promise.all([
     ordered,
-    withStatus(knex('sweep_points').where('sweep_id', sweep.id), query.status).first<{ n: string } | undefined>(knex.raw('count(*) as n')),
+    withFilter(knex('sweep_points').where('sweep_id', sweep.id), query).first<{ n: string } | undefined>(knex.raw('count(*) as n')),
   ]);
   const indices = page.map((row) => row.point_index);
   const rows =
