@@ -71,6 +71,20 @@ async function mountTable(points: SweepPointRow[]) {
 }
 
 describe('SweepPointsTable', () => {
+  it('keeps only the points whose boost lies between two values, asking the server with SI bounds', async () => {
+    const { wrapper, asked } = await mountTable([row(0, 100, 1, 68_948), row(1, 100, 2, 34_474), row(2, 150, 1, null), row(3, 150, 2, 55_158)])
+    // A static sweep: the boost metrics to pick from are its crack and full-open boost.
+    expect(wrapper.find('[data-testid="sweep-points-range"]').exists()).toBe(true)
+    await wrapper.find('[data-testid="sweep-points-from"] input').setValue('7')
+    await wrapper.find('[data-testid="sweep-points-to"] input').setValue('9')
+    await flushPromises()
+    const last = Object.fromEntries(asked.at(-1)!)
+    expect(last.between).toBe('crackBoostPa')
+    expect(Number(last.from)).toBeCloseTo(7 * 6894.757, 1)
+    expect(Number(last.to)).toBeCloseTo(9 * 6894.757, 1)
+    expect(last.offset).toBe('0')
+  })
+
   it("lists the points in the user's units, sorts by a column on the server and opens a row", async () => {
     // 100 N = 22.5 lbf; 68 948 Pa = 10.0 psi.
     const { wrapper, asked, opened } = await mountTable([row(0, 100, 1, 68_948), row(1, 100, 2, 34_474), row(2, 150, 1, null), row(3, 150, 2, 55_158)])

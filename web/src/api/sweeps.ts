@@ -21,6 +21,15 @@ export interface PointsQuery {
   order: 'asc' | 'desc'
   /** Only points with one of these results; none or empty: every point. */
   status?: readonly PointStatus[]
+  /** Only points whose metric lies from `from` to `to` (SI, inclusive). */
+  range?: PointRange
+}
+
+/** A metric's range that keeps a point (a sweep that answers a target: settled boost between A and B). */
+export interface PointRange {
+  between: SurfaceMetric
+  from: number
+  to: number
 }
 
 export const sweepsApi = {
@@ -47,12 +56,14 @@ export const sweepsApi = {
   },
   /** One page of the sweep's stored points. */
   points(id: string, query: PointsQuery, signal?: AbortSignal): Promise<SweepPointPage> {
-    const { status, ...rest } = query
-    return request(`${sweepPath(id)}/points`, { query: { ...rest, status: status?.length ? status.join(',') : undefined }, signal })
+    const { status, range, ...rest } = query
+    return request(`${sweepPath(id)}/points`, { query: { ...rest, ...(range ?? {}), status: status?.length ? status.join(',') : undefined }, signal })
   },
-  /** Every point as CSV in the given units. */
-  pointsCsv(id: string, units: UnitSystem): Promise<DownloadedFile> {
-    return downloadFile(`${sweepPath(id)}/points.csv`, { units }, `sweep-${id}.csv`)
+  /** Every point as CSV in the given units (only those in `range` when given). */
+  pointsCsv(id: string, units: UnitSystem, range?: PointRange): Promise<DownloadedFile> {
+    const query: Record<string, string> = { units }
+    if (range) Object.assign(query, { between: range.between, from: String(range.from), to: String(range.to) })
+    return downloadFile(`${sweepPath(id)}/points.csv`, query, `sweep-${id}.csv`)
   },
   surface(id: string, query: SurfaceQuery, signal?: AbortSignal): Promise<Surface> {
     return request(`${sweepPath(id)}/surface`, { query: { ...query }, signal })

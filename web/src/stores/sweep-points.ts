@@ -2,7 +2,7 @@ import { ref, shallowRef } from 'vue'
 import { defineStore } from 'pinia'
 import { ApiError } from '@/api/api-error'
 import type { DownloadedFile } from '@/api/download'
-import { sweepsApi, type PointsQuery } from '@/api/sweeps'
+import { sweepsApi, type PointRange, type PointsQuery } from '@/api/sweeps'
 import type { SweepPointPage, UnitSystem } from '@/api/types'
 
 /** The stored points of a finished sweep, a page at a time in the server's order, and their CSV. */
@@ -34,11 +34,11 @@ export const useSweepPointsStore = defineStore('sweep-points', () => {
   }
 
   /** The whole sweep as CSV in `units`; null when it could not be fetched (the reason is in exportError). */
-  async function exportCsv(sweepId: string, units: UnitSystem): Promise<DownloadedFile | null> {
+  async function exportCsv(sweepId: string, units: UnitSystem, range?: PointRange): Promise<DownloadedFile | null> {
     exporting.value = true
     exportError.value = null
     try {
-      return await sweepsApi.pointsCsv(sweepId, units)
+      return await sweepsApi.pointsCsv(sweepId, units, range)
     } catch (cause) {
       exportError.value = cause instanceof ApiError ? cause.message : 'The CSV could not be made.'
       return null
