@@ -110,6 +110,18 @@ describe('SweepResults', () => {
     expect(items.map((i) => i.title)).toEqual(['Crack boost', 'Full-open boost'])
   })
 
+  it('draws a dashed line where the metric crosses a target boost typed in, in the units on screen', async () => {
+    const { wrapper } = await mountResults(co2Scenario())
+    await wrapper.find('[data-testid="sweep-target-line"] input').setValue('7.5')
+    await new Promise((resolve) => setTimeout(resolve, 0))
+    await flushPromises()
+    const plot = wrapper.find('[data-testid="heat-map-plot"]').element as Plotted
+    const traces = (plot.plotted?.data ?? []) as unknown as { type: string; name?: string; contours?: { start: number; end: number } }[]
+    const line = traces.find((t) => t.type === 'contour')
+    expect(line?.contours).toMatchObject({ start: expect.closeTo(7.5, 6), end: expect.closeTo(7.5, 6) })
+    expect(line?.name).toBe('Target 7.5 psi')
+  })
+
   it('cuts the third axis with the slider and opens the clicked cell of that cut as a pull', async () => {
     const { wrapper, surfaceAsked, store } = await mountResults(co2Scenario())
     expect(wrapper.find('[data-testid="sweep-slice"]').text()).toContain('Cut at Regulator setpoint: 8.0 psi')
