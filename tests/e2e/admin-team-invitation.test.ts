@@ -45,8 +45,12 @@ describe('team invitation and password reset', () => {
     await page.evaluate(() => localStorage.removeItem('crackpoint.token'))
     await page.goto(`${baseUrl}${localPath(linkIn(invitation, 'http'))}`)
     await expect.poll(() => page.getByTestId('invitation-facts').textContent(), { timeout: 10_000 }).toContain(invitee)
+    // The name field takes focus on its own once mounted; typing before that can land in the wrong field on a busy
+    // machine, so wait for it as a person would.
+    await expect.poll(() => page.evaluate(() => document.activeElement?.getAttribute('autocomplete'))).toBe('name')
     await page.getByLabel('Your name').fill('Wren Okafor')
     await page.getByLabel('Choose a password').fill('spring seat forty two')
+    expect(await page.getByLabel('Your name').inputValue()).toBe('Wren Okafor')
     await page.screenshot({ path: screenshotPath('accept-invitation.png') })
     await page.getByRole('button', { name: /^Join / }).click()
     await page.waitForURL(/\/scenarios$/)
