@@ -397,6 +397,24 @@ export const solverSchema = section({
   settlingDelayS: num({ min: 0, max: 30 }).default(1),
 })
 
+/** What a target solve can be asked for, and which boost the target is (solve/target-solve.ts). */
+export const SOLVE_UNKNOWNS = ['seat-force', 'setpoint', 'bleed-fraction', 'duty'] as const
+export const SOLVE_TARGETS = ['crack', 'full-open', 'settled'] as const
+
+/**
+ * The boost a scenario was set up for, recorded when a target solve's answer is put in (the setup sheet says it):
+ * the target, which boost it is, the unknown that was solved for and the band of drive-to-boost ratios.
+ */
+export const goalSchema = section({
+  targetBoostPa: positive(1_000_000),
+  target: choice(SOLVE_TARGETS),
+  unknown: choice(SOLVE_UNKNOWNS),
+  ratioLow: positive(5),
+  ratioHigh: positive(5),
+}).superRefine((g, ctx) => {
+  if (g.ratioHigh < g.ratioLow) ctx.addIssue({ code: 'custom', path: ['ratioHigh'], message: 'must be at least goal.ratioLow' })
+})
+
 export const scenarioSchema = section({
   ambient: ambientSchema.prefault({}),
   engine: engineSchema,
@@ -409,6 +427,8 @@ export const scenarioSchema = section({
   plumbing: plumbingSchema.prefault({}),
   /** The user's boost limit, gauge; results above it are flagged. */
   boostLimitPa: positive(1_000_000).optional(),
+  /** The boost the scenario was set up for (a target solve's answer put in); none until one is. */
+  goal: goalSchema.optional(),
   solver: solverSchema.prefault({}),
 })
 
@@ -418,6 +438,7 @@ export type Spring = z.output<typeof springSchema>
 export type Control = z.output<typeof controlSchema>
 export type Supply = z.output<typeof supplySchema>
 export type PortLine = z.output<typeof portLineSchema>
+export type Goal = z.output<typeof goalSchema>
 
 export interface FieldIssue {
   /** Dotted path into the scenario, e.g. `wastegate.valveDiameterM`. */

@@ -81,6 +81,27 @@ describe('SetupSheetView', () => {
     expect(wrapper.find('[data-testid="sheet-note"]').text()).toContain("local codes and your sanctioning body's rules come first")
   })
 
+  it('says what boost the scenario was set up for, and what its settings give at each end of the band', async () => {
+    const withGoal: ScenarioRow = {
+      ...row,
+      data: scenarioSchema.parse({
+        ...row.data,
+        goal: { targetBoostPa: 60_947, target: 'crack', unknown: 'setpoint', ratioLow: 1.4, ratioHigh: 1.8 },
+      }),
+    }
+    const { wrapper } = await mountSheet([200, { scenario: withGoal }])
+    const text = wrapper.find('[data-testid="setup-sheet"]').text()
+    expect(text).toContain('Boost wanted')
+    expect(text).toContain('Set up for8.8 psi of crack boost, over 1.40–1.80 : 1')
+    expect(text).toContain('Chosen by solving forthe regulator setpoint')
+    // The crack rises as the ratio falls: the low end of the band gives the higher boost.
+    expect(text).toMatch(/Those settings give(\d+\.\d) psi to (\d+\.\d) psi/)
+    const [, low, high] = /Those settings give(\d+\.\d) psi to (\d+\.\d) psi/.exec(text)!
+    expect(Number(low)).toBeGreaterThan(Number(high))
+    // Without a goal the section is not there.
+    expect((await mountSheet()).wrapper.text()).not.toContain('Set up for')
+  })
+
   it('follows its own unit switch', async () => {
     const { wrapper } = await mountSheet()
     await wrapper.findAll('.sheet-toolbar button').find((b) => b.text() === 'Metric')!.trigger('click')

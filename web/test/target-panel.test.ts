@@ -50,6 +50,8 @@ describe('boost wanted: the target solve on the scenario page', () => {
     await wrapper.find('[data-testid="target-apply"]').trigger('click')
     await settle()
     const store = useScenarioStore()
+    // The scenario records what it was set up for (the setup sheet says it).
+    expect(store.draft?.goal).toMatchObject({ unknown: 'seat-force', target: 'crack', ratioLow: 1.5, ratioHigh: 1.5 })
     const live = store.live
     if (!live?.ok) throw new Error('the draft should stay valid')
     expect(live.balance.crack.status).toBe('opens')

@@ -2,7 +2,7 @@ import { boostAtLift, regulatedSupply, springForceAtBoost, type BoostOutcome } f
 import { bracketedRoot } from '../bracketed-root.ts'
 import { springTotals, wastegateAreas } from '../geometry.ts'
 import { runPull } from '../pull/run-pull.ts'
-import type { Scenario } from '../scenario.ts'
+import { SOLVE_TARGETS, SOLVE_UNKNOWNS, type Scenario } from '../scenario.ts'
 
 /**
  * The inverse of the static balance and of a pull (MODEL.md §4b, target solve): the one value of a scenario that
@@ -19,9 +19,8 @@ import type { Scenario } from '../scenario.ts'
  * nearest value with the boost that gives.
  */
 
-export const SOLVE_UNKNOWNS = ['seat-force', 'setpoint', 'bleed-fraction', 'duty'] as const
+export { SOLVE_TARGETS, SOLVE_UNKNOWNS }
 export type SolveUnknown = (typeof SOLVE_UNKNOWNS)[number]
-export const SOLVE_TARGETS = ['crack', 'full-open', 'settled'] as const
 export type SolveTarget = (typeof SOLVE_TARGETS)[number]
 
 export interface SolveRequest {

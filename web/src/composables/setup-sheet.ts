@@ -1,4 +1,4 @@
-import { computeBalance, type BalanceResult, type BoostOutcome, type Scenario } from '@crackpoint/sim-core'
+import { boostAtLift, computeBalance, type BalanceResult, type BoostOutcome, type Scenario } from '@crackpoint/sim-core'
 import { outcomeWords } from './boost-outcome'
 import type { FieldQuantity } from './field-units'
 import { arrangementTitle, gasOnTopPort, portFeeds, SUPPLY_TITLES, topPortOnSupply, type PortFeed } from './port-arrangements'
@@ -22,6 +22,8 @@ export interface SetupSheet {
   ports: SheetLine[]
   supply: SheetLine[]
   exhaust: SheetLine[]
+  /** The boost the scenario was set up for (a target solve's answer put in); empty when none was. */
+  goal: SheetLine[]
   crack: string
   fullOpen: string
   limit: string | null
@@ -130,6 +132,29 @@ function springLines(s: Scenario, b: BalanceResult, f: Format): SheetLine[] {
 }
 
 /** Everything the one-page setup sheet says about a saved scenario, worded in the reader's units. */
+const GOAL_BOOST = { crack: 'crack boost', 'full-open': 'full-open boost', settled: 'settled boost in a pull' } as const
+const GOAL_UNKNOWN = { 'seat-force': 'the spring seat force', setpoint: 'the regulator setpoint', 'bleed-fraction': 'the bleed fraction', duty: 'the solenoid duty' } as const
+
+/** What the scenario was set up for, and, for a static target, the boost its settings give at each end of the band. */
+function goalLines(s: Scenario, f: Format): SheetLine[] {
+  const g = s.goal
+  if (!g) return []
+  const band = g.ratioLow === g.ratioHigh ? `at ${f('ratio', g.ratioLow)} : 1` : `over ${f('ratio', g.ratioLow)}–${f('ratio', g.ratioHigh)} : 1`
+  const lines: SheetLine[] = [
+    { label: 'Set up for', value: `${f('pressure', g.targetBoostPa)} of ${GOAL_BOOST[g.target]}, ${band}` },
+    { label: 'Chosen by solving for', value: GOAL_UNKNOWN[g.unknown] },
+  ]
+  if (g.target !== 'settled') {
+    const lift = g.target === 'crack' ? 0 : s.wastegate.maxLiftM
+    const at = (ratio: number) => {
+      const o = boostAtLift(s, lift, { ratio })
+      return o.status === 'opens' ? f('pressure', o.boostPa) : o.status === 'never-opens' ? 'never opens' : 'open at zero boost'
+    }
+    lines.push({ label: 'Those settings give', value: g.ratioLow === g.ratioHigh ? at(g.ratioLow) : `${at(g.ratioLow)} to ${at(g.ratioHigh)}` })
+  }
+  return lines
+}
+
 export function setupSheet(s: Scenario, format: Format): SetupSheet {
   const b = computeBalance(s)
   const f = format
@@ -178,6 +203,7 @@ export function setupSheet(s: Scenario, format: Format): SetupSheet {
 
   return {
     gate,
+    goal: goalLines(s, f),
     springs: springLines(s, b, f),
     ports,
     supply: supplyLines(s, b, f),

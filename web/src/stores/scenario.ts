@@ -15,6 +15,7 @@ import {
   type Scenario,
   type ScenarioInput,
   type SolveUnknown,
+  type Goal,
   type Supply,
   type WastegateAreas,
 } from '@crackpoint/sim-core'
@@ -287,9 +288,11 @@ export const useScenarioStore = defineStore('scenario', () => {
    * Puts a target solve's answer in the draft: a seat force as one spring of the springs' total rate (nested springs
    * are answered as their total), a setpoint, a bleed fraction or a solenoid duty.
    */
-  function applySolved(unknown: SolveUnknown, value: number): void {
+  function applySolved(unknown: SolveUnknown, value: number, goal?: Goal): void {
     const d = draft.value
     if (!d) return
+    // The scenario records what it was set up for; the setup sheet says it.
+    if (goal) d.goal = { ...goal }
     if (unknown === 'seat-force') {
       const current = live.value?.ok ? live.value.scenario : null
       const rateNPerM = current ? current.springs.reduce((sum, spring) => sum + spring.rateNPerM, 0) : 0
