@@ -125,6 +125,13 @@ describe('POST /api/datalogs', () => {
     });
   }
 
+  it('stops reading an upload at the configured limit, not at the 20 MB ceiling', async () => {
+    // Four times the limit: the form parser refuses it itself (its own words), before any of it is kept.
+    const response = await upload(`Time (s),Boost (psi)\n${'0.1,1.0\n'.repeat(4 * 1200)}`);
+    expect(response.status).toBe(413);
+    expect(response.body.error).toMatchObject({ code: 'file_too_large', message: 'The file is larger than the 8 kB this accepts.' });
+  });
+
   it('refuses a form without a file with 400 naming it, and a JSON body with 415', async () => {
     const before = await dbFingerprint(ctx.knex);
     const noFile = await request(ctx.app).post('/api/datalogs').set(bearer('engineer')).field('note', 'forgot the file');

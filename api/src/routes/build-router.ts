@@ -220,7 +220,11 @@ export function buildRouter(routes: readonly AnyRoute[], deps: ApiDeps): Router 
     }
     for (const name of route.limiters ?? []) chain.push(limiters[name]);
     // A file is read only for a caller who may send it, after the role and rate checks.
-    if (bodyKind.kind === 'multipart') chain.push(multipartParser(bodyKind.field, bodyKind.maxBytes));
+    // The parser stops reading at the configured limit (a 2 MB log limit reads at most 2 MB, not the ceiling).
+    if (bodyKind.kind === 'multipart') {
+      const limit = Math.min(bodyKind.maxBytes, bodyKind.configuredMaxBytes?.(deps.config) ?? bodyKind.maxBytes);
+      chain.push(multipartParser(bodyKind.field, limit));
+    }
     chain.push(routeHandler(route, deps));
     router[route.method](route.path, ...chain);
   }

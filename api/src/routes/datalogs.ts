@@ -25,8 +25,8 @@ import { defineRoute, Reply, OWN_ONLY, ROLES } from './route-def.ts';
 export const DATALOG_FILE_FIELD = 'file';
 
 /**
- * The most any configuration lets a log be (DATALOG_MAX_BYTES at most 20 MiB). The form parser stops at it;
- * the configured limit, at or below it, is checked on the file read.
+ * The most any configuration lets a log be (DATALOG_MAX_BYTES at most 20 MiB). The form parser stops reading at the
+ * configured limit, at or below it.
  */
 export const DATALOG_UPLOAD_CEILING_BYTES = 20 * 1024 * 1024;
 
@@ -39,7 +39,12 @@ export const datalogRoutes = [
     tag: 'Datalogs',
     access: ROLES.compute,
     scope: 'collection',
-    requestBody: { kind: 'multipart', field: DATALOG_FILE_FIELD, maxBytes: DATALOG_UPLOAD_CEILING_BYTES },
+    requestBody: {
+      kind: 'multipart',
+      field: DATALOG_FILE_FIELD,
+      maxBytes: DATALOG_UPLOAD_CEILING_BYTES,
+      configuredMaxBytes: (config) => config.datalogMaxBytes,
+    },
     success: { status: 201, description: 'Stored, with the detected mapping to confirm', schema: datalogResponseSchema },
     errors: [413, 415, 422],
     handler: async ({ deps, auth, file }) => ({ datalog: await uploadDatalog(deps.knex, deps.config, auth, file) }),

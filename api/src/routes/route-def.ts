@@ -71,7 +71,14 @@ export interface UploadedFile {
  */
 export type RequestBodyKind =
   | { kind: 'json' }
-  | { kind: 'multipart'; field: string; maxBytes: number }
+  | {
+      kind: 'multipart'
+      field: string
+      /** The most the form parser reads of the file, whatever the configuration. */
+      maxBytes: number
+      /** A lower limit from the configuration, read when the router is built: the parser stops reading there. */
+      configuredMaxBytes?: (config: Config) => number
+    }
   | { kind: 'raw'; maxBytes: number };
 
 /** What a route answers with, for the OpenAPI document; JSON unless the route streams. */
