@@ -78,11 +78,8 @@ async function solve(options: CliOptions, path: string, io: CliIo): Promise<numb
   })
   if (options.json) {
     // SI, with the names the rest of the CLI's JSON uses; the scenario with the answer in is left to `balance`.
-    const { scenario: _withAnswer, ...rest } = result.status === 'solved' ? result : { ...result, scenario: undefined }
-    const named =
-      result.status === 'solved'
-        ? { ...rest, [VALUE_NAMES[ask.unknown]]: result.value }
-        : rest
+    const { scenario: _withAnswer, ...rest } = { scenario: undefined, ...result }
+    const named = result.status === 'solved' ? { ...rest, [VALUE_NAMES[ask.unknown]]: result.value } : rest
     io.stdout(`${json(named)}\n`)
   } else {
     io.stdout(`${renderSolve(basename(path), scenario.value, result, options.units)}\n`)

@@ -29,6 +29,7 @@ export async function solveScenario(knex: Knex, workspaceId: string, id: string,
     }
     throw error;
   }
-  const solve = result.status === 'solved' ? (({ scenario: _withAnswer, ...rest }) => rest)(result) : result;
+  // The client has the scenario already; the answer goes back without it.
+  const { scenario: _withAnswer, ...solve } = { scenario: undefined, ...result };
   return { solve, scenarioId: scenario.id, scenarioVersion: scenario.version };
 }

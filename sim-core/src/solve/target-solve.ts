@@ -211,8 +211,7 @@ export function solveForTarget(s: Scenario, request: SolveRequest): SolveResult 
       boosts(u).map((b, i) => ({ ratio: ratios[i]!, boostPa: b >= NEVER_OPENS_PA ? null : b, settles: null }))
     let value: number
     if (unknown === 'seat-force' && ratios.length === 1) {
-      // Closed form: the spring that balances the pressure forces at the target boost. The balance is linear in the
-      // spring force, so the boost with no spring and the boost with a unit spring give it exactly.
+      // Closed form: the spring that balances the pressure forces at the target boost (MODEL.md §2 solved for it).
       value = seatForceFor(s, target, ratios[0]!, targetBoostPa)
     } else {
       const fLo = mean(slot.lo) - targetBoostPa
@@ -227,7 +226,7 @@ export function solveForTarget(s: Scenario, request: SolveRequest): SolveResult 
       const end = value < slot.lo ? slot.lo : slot.hi
       return unreachable(common, value < slot.lo ? 'below-range' : 'above-range', value < slot.lo ? slot.tooLow : slot.tooHigh, end, report(end), 0)
     }
-    return solved(s, common, unknown, value, report(value), slot, 0)
+    return solved(s, common, value, report(value), slot, 0)
   }
 
   // Settled boost of a pull: a few pulls of a bracketed root, started from the static answers. A settled gate sits
@@ -261,7 +260,7 @@ export function solveForTarget(s: Scenario, request: SolveRequest): SolveResult 
   }
   const atCrack = probe(startAt('crack'))
   if (!isProbe(atCrack)) return atCrack
-  if (Math.abs(atCrack.f) <= SETTLED_TOLERANCE_PA) return solved(s, common, unknown, atCrack.u, atCrack.b, slot, pulls)
+  if (Math.abs(atCrack.f) <= SETTLED_TOLERANCE_PA) return solved(s, common, atCrack.u, atCrack.b, slot, pulls)
   const atFull = probe(startAt('full-open'))
   if (!isProbe(atFull)) return atFull
   let lo = atCrack.f <= 0 ? atCrack : atFull
@@ -308,7 +307,7 @@ export function solveForTarget(s: Scenario, request: SolveRequest): SolveResult 
     }
   }
   if (Math.abs(best.f) > SETTLED_TOLERANCE_PA) return noSettledBoost(common, best.u, best.b, pulls)
-  return solved(s, common, unknown, best.u, best.b, slot, pulls)
+  return solved(s, common, best.u, best.b, slot, pulls)
 }
 
 function seatForceFor(s: Scenario, target: 'crack' | 'full-open', ratio: number, boostPa: number): number {
@@ -320,7 +319,6 @@ function seatForceFor(s: Scenario, target: 'crack' | 'full-open', ratio: number,
 function solved(
   s: Scenario,
   common: { unknown: SolveUnknown; target: SolveTarget; targetBoostPa: number },
-  unknown: SolveUnknown,
   value: number,
   band: BandBoost[],
   slot: UnknownSlot,
@@ -331,7 +329,7 @@ function solved(
     ...common,
     status: 'solved',
     value,
-    benchCrackPressurePa: unknown === 'seat-force' ? value / wastegateAreas(s.wastegate).bottomM2 : null,
+    benchCrackPressurePa: common.unknown === 'seat-force' ? value / wastegateAreas(s.wastegate).bottomM2 : null,
     band,
     worstMissPa: Math.max(...misses),
     pulls,
